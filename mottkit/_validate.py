@@ -19,7 +19,7 @@ def _first_bad(arr: np.ndarray, bad: np.ndarray) -> str:
         if arr.ndim == 0
         else f" at index {tuple(int(i) for i in idx) if arr.ndim > 1 else int(idx[0])}"
     )
-    return f"{arr[tuple(idx)]!r}{where}"
+    return f"{float(arr[tuple(idx)])!r}{where}"
 
 
 def as_float_array(name: str, value) -> np.ndarray:

@@ -28,7 +28,7 @@ from functools import lru_cache
 import numpy as np
 from numpy.typing import ArrayLike
 from scipy.integrate import solve_ivp
-from scipy.interpolate import BarycentricInterpolator
+from scipy.interpolate import BarycentricInterpolator, CubicSpline
 from scipy.linalg import eigh_tridiagonal
 from scipy.optimize import brentq
 
@@ -121,7 +121,7 @@ def yukawa_ground_state_energy(delta: float) -> float:
 
 
 @lru_cache(maxsize=1)
-def _interpolant() -> BarycentricInterpolator:
+def _interpolant() -> CubicSpline:
     d_c = yukawa_threshold()
     k = np.arange(_N_NODES + 1)
     nodes = 0.5 * d_c * (1.0 - np.cos(np.pi * k / _N_NODES))
@@ -129,7 +129,10 @@ def _interpolant() -> BarycentricInterpolator:
     for i, d in enumerate(nodes[:-1]):
         root_b[i] = np.sqrt(max(-2.0 * yukawa_ground_state_energy(float(d)), 0.0))
     root_b[-1] = 0.0
-    return BarycentricInterpolator(nodes, root_b)
+    # barycentric (spectral) interpolation through the Chebyshev nodes, resampled once
+    # onto a fine uniform grid so that a million evaluations cost a spline lookup
+    fine = np.linspace(0.0, d_c, 4001)
+    return CubicSpline(fine, BarycentricInterpolator(nodes, root_b)(fine))
 
 
 def yukawa_binding(screening_ratio: ArrayLike) -> float | np.ndarray:
