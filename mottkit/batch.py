@@ -66,7 +66,7 @@ RESULT_COLUMNS = [
 VERDICTS = ["metallic", "near-transition", "insulating", "invalid"]
 
 _DEFAULT_TEMPERATURE_K = 300.0
-_HEAVY_HOLE_MASS = 1.0  # m*/m_e above which holes count as heavy (common practice, no source)
+_HEAVY_HOLE_MASS = 0.5  # m*/m_e from which holes count as heavy (common practice, no source)
 _FREEZE_OUT_FRACTION = (
     0.1  # k_BT > 0.1 E_d: partial ionisation matters (common practice, no source)
 )
@@ -178,7 +178,8 @@ def screen(
         e²/(8π ε_0 ε_r E_d), where the table has one (else the mass route).
         "auto" (default): the binding route for multi-valley hosts (Si, Ge),
         where central-cell effects defeat the single-mass model, as Edwards &
-        Sienko (1978) did; the mass route elsewhere. Rows say which in
+        Sienko (1978) did, and for rows that give their own donor's
+        ``donor_binding_mev``; the mass route elsewhere. Rows say which in
         ``radius_route``.
     annotations : DataFrame or path, optional
         Annotations (see :func:`mottkit.load_annotations`) or the data file whose
@@ -276,15 +277,20 @@ def screen(
     g = np.where(ok, valleys, 1.0)
     if radius not in ("auto", "mass", "binding"):
         raise InputError(f"radius must be 'auto', 'mass' or 'binding', got {radius!r}")
+    # donor binding: a per-row value (the film's own donor species) wins over the host's
+    row_binding = _column(data, "donor_binding_mev")
+    donor_mev = np.where(row_binding > 0, row_binding, params["donor_binding_mev"])
     has_binding = ok & (params["donor_binding_mev"] > 0) & use_eps_default & use_mass_default
     if radius == "auto":
         has_binding &= valleys > 1
     elif radius == "mass":
         has_binding[:] = False
+    if radius != "mass":
+        has_binding |= ok & (row_binding > 0)
     a_b = np.asarray(criterion.effective_bohr_radius(e, m), dtype=float)
     if has_binding.any():
         a_b[has_binding] = criterion.bohr_radius_from_binding(
-            e[has_binding], params["donor_binding_mev"][has_binding]
+            e[has_binding], donor_mev[has_binding]
         )
     route = np.where(has_binding, "binding", np.where(ok, "mass", "")).astype(object)
     # the radius fixes the uncertainty too: a ∝ ε_r/m* (mass) or 1/(ε_r E_d) (binding,
@@ -344,7 +350,7 @@ def screen(
         & use_eps_default,
         "freeze_out": ok & not_metal & (k_t_mev > _FREEZE_OUT_FRACTION * donor),
         "non_degenerate": ok & (eta < 0),
-        "heavy_holes": ok & (carrier == "p") & (m > _HEAVY_HOLE_MASS),
+        "heavy_holes": ok & (carrier == "p") & (m >= _HEAVY_HOLE_MASS),
         "host_default": ok & (use_eps_default | use_mass_default),
         "carrier_type_mismatch": ok & (host_type != "") & (carrier != host_type),
         "ioffe_regel": ok & (verdict == "metallic") & (kfl < 1),
@@ -460,8 +466,8 @@ def _join_transport(result: pd.DataFrame, transport: pd.DataFrame) -> pd.DataFra
     merged["agreement"] = agreement
     disagree = merged["agreement"] == "disagree"
     if disagree.any():
-        codes = merged["cautions"].astype(object).to_numpy()
-        text = merged["caution_text"].astype(object).to_numpy()
+        codes = merged["cautions"].astype(object).to_numpy().copy()
+        text = merged["caution_text"].astype(object).to_numpy().copy()
         d = disagree.to_numpy()
         codes[d] = _join_text(codes[d], np.full(d.sum(), "transport_disagrees", dtype=object), ";")
         text[d] = _join_text(
@@ -477,11 +483,13 @@ def _join_annotations(result: pd.DataFrame, annotations) -> pd.DataFrame:
 
     if not isinstance(annotations, pd.DataFrame):
         annotations = load_annotations(annotations)
+    # a note column of the data file itself is kept, under its own name
+    result = result.rename(columns={c: f"file_{c}" for c in ("note", "tags") if c in result})
     joined = join_annotations(result, annotations)
     excluded = joined["excluded"].to_numpy(dtype=bool)
     if excluded.any():
-        codes = joined["cautions"].astype(object).to_numpy()
-        text = joined["caution_text"].astype(object).to_numpy()
+        codes = joined["cautions"].astype(object).to_numpy().copy()
+        text = joined["caution_text"].astype(object).to_numpy().copy()
         codes[excluded] = _join_text(
             codes[excluded], np.full(excluded.sum(), "excluded", dtype=object), ";"
         )

@@ -336,6 +336,6 @@ def classify_verdict(
     p = np.asarray(probability, dtype=float)
     out = np.full(p.shape, "near-transition", dtype=object)
     out[p >= confidence] = "metallic"
-    out[p <= 1 - confidence] = "insulating"
+    out[1 - p >= confidence] = "insulating"
     out[np.isnan(p)] = "invalid"
     return out
