@@ -422,7 +422,7 @@ def _is_internal(column: str) -> bool:
 
 def _has_code(data: pd.DataFrame, code: str) -> np.ndarray:
     out = np.zeros(len(data), dtype=bool)
-    for col in ("flags", "cautions"):
+    for col in ("flags", "x_flags", "cautions"):
         if col in data.columns:
             out |= data[col].astype(str).str.contains(code, regex=False).to_numpy()
     return out
@@ -449,13 +449,48 @@ def _ioffe_regel(density_cm3: np.ndarray, resistivity_ohm_cm: np.ndarray, valley
 
 
 def _join_transport(result: pd.DataFrame, transport: pd.DataFrame) -> pd.DataFrame:
+    """Set each film's ρ(T) verdict beside its criterion verdict (by batch and sample).
+
+    A curve without a batch matches its sample in any batch; one with a batch matches
+    only that batch.
+    """
     from .transport import compare_verdicts
 
-    keys = ["batch", "sample"] if "batch" in transport.columns else ["sample"]
-    right = transport[[*keys, "transport_verdict"]].copy()
-    right["batch"] = right.get("batch", "").fillna("").astype(str) if "batch" in keys else None
-    right = right.drop_duplicates(keys, keep="last")
-    merged = result.merge(right, on=keys, how="left", validate="many_to_one")
+    if "sample" not in transport.columns or "transport_verdict" not in transport.columns:
+        raise InputError("transport table needs 'sample' and 'transport_verdict' columns")
+    right = pd.DataFrame(
+        {
+            "sample": transport["sample"].astype(str).to_numpy(),
+            "batch": (
+                transport["batch"].fillna("").astype(str).to_numpy()
+                if "batch" in transport.columns
+                else ""
+            ),
+            "transport_verdict": transport["transport_verdict"].astype(str).to_numpy(),
+        }
+    ).drop_duplicates(["batch", "sample"], keep="last")
+    key_sample = result["sample"].astype(str).to_numpy()
+    key_batch = result["batch"].astype(str).to_numpy()
+    by_pair = dict(
+        zip(
+            zip(right["batch"], right["sample"], strict=True),
+            right["transport_verdict"],
+            strict=True,
+        )
+    )
+    by_sample = dict(
+        zip(
+            right.loc[right["batch"] == "", "sample"],
+            right.loc[right["batch"] == "", "transport_verdict"],
+            strict=True,
+        )
+    )
+    verdicts = [
+        by_pair.get((b, smp), by_sample.get(smp, ""))
+        for b, smp in zip(key_batch, key_sample, strict=True)
+    ]
+    merged = result.copy()
+    merged["transport_verdict"] = verdicts
     merged["transport_verdict"] = merged["transport_verdict"].fillna("")
     has = merged["transport_verdict"] != ""
     agreement = np.full(len(merged), "", dtype=object)

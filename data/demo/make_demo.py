@@ -97,15 +97,17 @@ def write_sweeps_and_resistances() -> None:
     ]
     field = np.round(np.linspace(-9, 9, 41), 3)
     current = 1e-4
-    sweeps = [NOTE, "# Hall field sweeps, 100 µA, 300 K; W7-12 carries a second, slow hole\n",
+    sweeps = [NOTE, "# Hall field sweeps, 100 µA, 300 K; W7-12 carries a second, mobile hole\n",
               "# channel (an interface layer), so its R_xy(B) bends.\n",
-              "sample,T (K),B (T),I (µA),V_H (mV)\n"]  # fmt: skip
+              "# R_xx is the longitudinal sheet resistance of a square Hall-bar section.\n",
+              "sample,T (K),B (T),I (µA),V_H (mV),R_xx (Ohm)\n"]  # fmt: skip
     resist = [NOTE, "# van der Pauw resistances, 8 contact configurations, 300 K\n",
               "sample,T (K),configuration,R (Ohm),thickness (nm)\n"]  # fmt: skip
     for sample, t_nm, ns_signed, mu in films:
         ns = abs(ns_signed) * 1e4  # m^-2
         r_s = 1 / (sc.e * ns * mu * 1e-4)
         r_xy = -field / (sc.e * ns)  # electrons: negative slope
+        r_xx = np.full(field.size, r_s)
         if sample == "W7-12":
             # two-band Drude: electrons (ns, mu) plus holes (2e13 cm^-2, 600 cm2/Vs)
             s1 = sc.e * ns * mu * 1e-4
@@ -117,10 +119,16 @@ def write_sweeps_and_resistances() -> None:
                 1 + (mu2 * b) ** 2
             )
             r_xy = sxy / (sxx**2 + sxy**2)
+            r_xx = sxx / (sxx**2 + sxy**2)
+            r_s = 1 / (s1 + s2)
         offset = 0.04 * r_s * RNG.uniform(-1, 1)  # misaligned Hall contacts
         noise = 0.003 * np.abs(r_xy).max() * RNG.standard_normal(field.size)
         v_h = (r_xy + offset + noise) * current * 1e3  # mV
-        sweeps += [f"{sample},300,{b:g},100,{v:.6g}\n" for b, v in zip(field, v_h, strict=True)]
+        r_xx = r_xx * (1 + 0.002 * RNG.standard_normal(field.size))
+        sweeps += [
+            f"{sample},300,{b:g},100,{v:.6g},{x:.6g}\n"
+            for b, v, x in zip(field, v_h, r_xx, strict=True)
+        ]
         ratio = RNG.uniform(1.05, 1.6)
         r_b = brentq(lambda x, rs=r_s, q=ratio: np.exp(-np.pi * q * x / rs)
                      + np.exp(-np.pi * x / rs) - 1, 1e-9 * r_s, 10 * r_s)  # fmt: skip
