@@ -63,13 +63,14 @@ def escape(values) -> np.ndarray:
     """
     series = pd.Series(values, dtype=object) if not isinstance(values, pd.Series) else values
     codes, uniques = pd.factorize(series.astype(object), use_na_sentinel=True)
-    texts = [html.escape(_plain(u), quote=True).replace("\n", "<br>") for u in uniques]
+    # quote=False: plotly decodes &lt; &gt; &amp; but shows &quot; literally; quotes are inert
+    texts = [html.escape(_plain(u), quote=False).replace("\n", "<br>") for u in uniques]
     return np.array([*texts, ""], dtype=object)[codes]
 
 
 def escape_one(value) -> str:
     """One value as HTML-escaped text."""
-    return html.escape(_plain(value), quote=True)
+    return html.escape(_plain(value), quote=False)
 
 
 def _plain(value) -> str:

@@ -1,0 +1,596 @@
+"""Headers and cells: from a table's text to header specs and cells (private).
+
+:func:`parse_header` turns one header cell into a :class:`HeaderSpec`
+(canonical column and conversion) using the vocabulary table of
+:mod:`mottkit._units`, and :func:`accepted_headers` renders that vocabulary
+for messages and the docs. :func:`read_frame` does the work of
+:func:`mottkit.ingest.read_table`: decode the bytes, find the header line,
+sniff the delimiter, and split the data lines into cells, in one vectorised
+pyarrow pass when the file is clean and line by line when it has comment,
+blank or ragged lines.
+
+Header forms, matched case-insensitively (``_``, ``-``, ``.`` and spaces in
+names are equivalent):
+
+* ``name (unit)``, ``name [unit]``, ``name / unit``, ``name, unit``;
+* glued glossary style ``name_unit`` (``density_cm3``, ``mobility_cm2_vs``),
+  where the unit is written without signs or slashes and is matched on its
+  symbols and the sizes of their powers;
+* a power-of-ten multiplier in front of the unit, ``n (1e18 cm^-3)`` or
+  ``n [10^18 cm-3]``: cells are multiplied by it;
+* uncertainties: ``n_err``, ``n error``, ``n uncertainty``, ``n unc``,
+  ``n std``, ``± n``, ``+/- n``, ``δn``, ``Δn``, ``σ(n)``, ``u(n)``, each with
+  its own unit (``σ(n) (cm^-3)``), or a bare ``±`` right of the column it
+  belongs to, in that column's unit unless it gives one. A unit of ``%`` makes
+  it relative to the value in the same row. A bare ``d`` prefix (``dn``,
+  ``dT``) is *not* read as an uncertainty: it is as often a difference or a
+  derivative, so such a header is refused with the accepted forms;
+* free columns: a header starting with ``nominal`` or ``x_`` (or just ``x``),
+  e.g. ``nominal Al (%)``, ``x_O2 pressure (mTorr)``, is kept as it is under
+  a cleaned name (``nominal_al_pct``, ``x_o2_pressure_mtorr``), numeric when
+  every cell is a number. Any other header that matches nothing is refused,
+  so that a misspelt quantity is never carried along unread.
+"""
+
+from __future__ import annotations
+
+import csv
+import difflib
+import re
+import unicodedata
+from typing import NamedTuple
+
+import numpy as np
+import pyarrow as pa
+import pyarrow.compute as pc
+import pyarrow.csv as pcsv
+
+from . import _units as U
+from ._units import KINDS, QUANTITIES, Quantity
+from .errors import InputError, ReadError
+
+__all__: list[str] = []
+
+
+class HeaderSpec(NamedTuple):
+    """What one header cell means.
+
+    ``column`` is the output column; a value read in the file's unit becomes
+    ``value * scale + offset`` in the canonical unit. ``role`` is ``"value"``,
+    ``"error"`` (absolute one-sigma uncertainty of ``quantity``),
+    ``"relative_error"`` (in % of the value), ``"text"``, ``"carrier"``,
+    ``"extra"`` or ``"unnamed"`` (an empty header cell).
+    """
+
+    column: str
+    quantity: str
+    scale: float = 1.0
+    offset: float = 0.0
+    unit: str = ""
+    role: str = "value"
+
+    def convert(self, values):
+        """Convert file values [file unit] to the canonical unit."""
+        return values * self.scale + self.offset
+
+
+def norm_name(text: str) -> str:
+    """Header name as compared with aliases: NFKC, case-folded, separators as spaces."""
+    s = unicodedata.normalize("NFKC", text).casefold().replace("µ", "μ")
+    return re.sub(r"[\s_\-.]+", " ", s).strip()
+
+
+_ALIASES: dict[str, list[str]] = {}
+for _qty in QUANTITIES.values():
+    _unitless = _qty.units in (None, U.DIMENSIONLESS, U.MASS_RATIO)
+    for _alias in (*_qty.aliases, *((_qty.column,) if _unitless else ())):
+        _ALIASES.setdefault(norm_name(_alias), []).append(_qty.column)
+
+_ERR_SUFFIX = re.compile(r"(?i)[\s_\-.]*(?:err|error|uncertainty|unc|std|stdev|sd)$")
+_ERR_PREFIX = re.compile(r"^\s*(?:±|\+/-|\+-|δ|Δ)\s*")
+_ERR_WRAP = re.compile(
+    r"(?i)^\s*(?:σ|sigma|u|err|std)\((?P<inner>[^()]*(?:\([^()]*\))?[^()]*)\)(?P<rest>.*)$"
+)
+_PERCENT = re.compile(r"[\(\[]\s*%\s*[\)\]]\s*$")
+_EXTRA = re.compile(r"^(?:nominal\b|x(?:[\s_.]|$))")
+
+
+def _split_unit(text: str) -> list[tuple[str, str, bool]]:
+    """Possible (name, unit, glued) readings of a header, most explicit first."""
+    s = text.strip()
+    out: list[tuple[str, str, bool]] = []
+    if s and s[-1] in ")]":
+        close, open_ = s[-1], "(" if s[-1] == ")" else "["
+        depth = 0
+        for i in range(len(s) - 1, -1, -1):
+            depth += {close: 1, open_: -1}.get(s[i], 0)
+            if depth == 0:
+                name = re.sub(r"[\s/,]+$", "", s[:i])
+                if name:
+                    out.append((name, s[i + 1 : -1].strip(), False))
+                break
+    for sep in (" / ", ", "):
+        if sep in s:
+            name, unit = s.split(sep, 1)
+            out.append((name.strip(), unit.strip(), False))
+    out.append((s, "", False))
+    if len(out) > 1:  # an explicit unit was given: no glued readings
+        return out
+    tokens = [t for t in re.split(r"[\s_]+", s) if t]
+    for k in range(len(tokens) - 1, 0, -1):
+        out.append((" ".join(tokens[:k]), " ".join(tokens[k:]), True))
+    return out
+
+
+def _match_unit(qty: Quantity, unit: str, glued: bool) -> tuple[float, float] | str:
+    """(scale, offset) of ``unit`` for ``qty``, or the reason it is refused."""
+    try:
+        mult, rest = U.scale_prefix(unit)
+        key = U.suffix_key(rest) if glued else U.unit_key(rest, prepared=True)
+    except ValueError as exc:
+        return str(exc)
+    for u in qty.units:
+        ukey = U.suffix_key(u.spelling) if glued else U.unit_key(u.spelling)
+        if ukey == key:
+            return mult * u.factor, u.offset
+    if key == ():
+        return f"{qty.column} needs a unit, e.g. '{qty.aliases[0]} ({qty.units[0].spelling})'"
+    why = f"unit {unit!r} is not accepted for {qty.column}; accepted: {U.display(qty.units)}"
+    other = [
+        q.column
+        for q in QUANTITIES.values()
+        if q.units
+        and q is not qty
+        and not glued
+        and key in {U.unit_key(u.spelling) for u in q.units}
+    ]
+    return why + (f" ({unit!r} is a unit of {', '.join(other)})" if other else "")
+
+
+def _plain(text: str, allowed: tuple[str, ...]) -> tuple[list[HeaderSpec], list[str]]:
+    """Readings of ``text`` as a value/text column, and reasons for near misses."""
+    found: list[HeaderSpec] = []
+    reasons: list[str] = []
+    for name, unit, glued in _split_unit(text):
+        for col in _ALIASES.get(norm_name(name), ()):
+            qty = QUANTITIES[col]
+            if col not in allowed:
+                kinds = [k for k, cols in KINDS.items() if col in cols]
+                reasons.append(
+                    f"{col} is a column of {' / '.join(kinds)} tables, not of this kind"
+                )
+                continue
+            if qty.units is None:
+                role = "carrier" if col == "carrier_type" else "text"
+                found.append(HeaderSpec(col, col, 1.0, 0.0, unit, role))
+                continue
+            got = _match_unit(qty, unit, glued)
+            if isinstance(got, str):
+                reasons.append(got)
+            else:
+                found.append(HeaderSpec(col, col, got[0], got[1], unit, "value"))
+        if found:  # the most explicit reading that works wins
+            break
+    if not found and not reasons:
+        name = _split_unit(text)[0][0]
+        close = difflib.get_close_matches(norm_name(name), list(_ALIASES), n=3, cutoff=0.75)
+        close = [c for c in close if any(col in allowed for col in _ALIASES[c])]
+        if close:
+            reasons.append(f"did you mean {' or '.join(repr(c) for c in close)}?")
+        if norm_name(name)[:1] == "d" and norm_name(name)[1:].strip() in _ALIASES:
+            reasons.append("a 'd' prefix is not read as an uncertainty: write 'X_err' or 'δX'")
+    return found, reasons
+
+
+def _err(col: str, scale: float, unit: str, *, relative: bool = False) -> HeaderSpec:
+    if relative:
+        return HeaderSpec(f"{col}_err", col, 0.01, 0.0, "%", "relative_error")
+    return HeaderSpec(f"{col}_err", col, scale, 0.0, unit, "error")
+
+
+def _error_readings(text: str, allowed, previous) -> tuple[list[HeaderSpec], list[str]]:
+    """Readings of ``text`` as the uncertainty of a numeric column."""
+    s = unicodedata.normalize("NFKC", text).strip()
+    found: list[HeaderSpec] = []
+    reasons: list[str] = []
+    inner: list[str] = []  # header texts naming the quantity this is the uncertainty of
+    if m := _ERR_WRAP.match(s):  # σ(n) (cm^-3)
+        inner.append(f"{m['inner']} {m['rest']}".strip())
+    if _ERR_PREFIX.match(s):
+        rest = _ERR_PREFIX.sub("", s, count=1)
+        bare = re.fullmatch(r"(?:[\(\[](?P<unit>.*)[\)\]])?\s*", rest)
+        if bare is None:
+            inner.append(rest)
+        elif previous is None or previous.role != "value":
+            reasons.append("a bare '±' must stand right of the numeric column it belongs to")
+        elif bare["unit"] is None:  # same unit as the column on its left
+            found.append(_err(previous.quantity, previous.scale, previous.unit))
+        elif bare["unit"].strip() == "%":
+            found.append(_err(previous.quantity, 1.0, "%", relative=True))
+        else:
+            got = _match_unit(QUANTITIES[previous.quantity], bare["unit"], False)
+            if isinstance(got, str):
+                reasons.append(got)
+            else:
+                found.append(_err(previous.quantity, got[0], bare["unit"]))
+    for name, unit, glued in _split_unit(s):
+        if unit and not glued and _ERR_SUFFIX.search(name):  # n_err (cm^-3)
+            inner.append(f"{_ERR_SUFFIX.sub('', name)} ({unit})")
+    if _ERR_SUFFIX.search(s):  # density_cm3_err, eps_r error
+        inner.append(_ERR_SUFFIX.sub("", s))
+    for cand in filter(str.strip, inner):
+        if pct := _PERCENT.search(cand):  # relative: n_err (%)
+            name = cand[: pct.start()]
+            specs, why = _plain(name, allowed)
+            cols = [x.column for x in specs if x.role == "value"] or [
+                c
+                for c in _ALIASES.get(norm_name(name), ())
+                if c in allowed and QUANTITIES[c].units
+            ]
+            found.extend(_err(c, 1.0, "%", relative=True) for c in cols)
+            reasons.extend(why if not cols else ())
+            continue
+        specs, why = _plain(cand, allowed)
+        found.extend(_err(x.column, x.scale, x.unit) for x in specs if x.role == "value")
+        reasons.extend(why)
+    return found, reasons
+
+
+def clean_extra(text: str) -> str:
+    """Cleaned column name of a free column: ``nominal Al (%)`` -> ``nominal_al_pct``."""
+    s = unicodedata.normalize("NFKC", text).casefold()
+    s = s.replace("%", " pct").replace("μ", "u").replace("µ", "u").replace("°", "deg")
+    return re.sub(r"[^a-z0-9]+", "_", s).strip("_")
+
+
+def parse_header(
+    text: str, *, kind: str = "measurements", previous: HeaderSpec | None = None, context=()
+) -> HeaderSpec:
+    """Canonical column and unit conversion of one header cell.
+
+    Parameters
+    ----------
+    text : str
+        The header cell as written, e.g. ``"n (cm^-3)"`` or ``"ρ [mΩ·cm]"``.
+    kind : {"measurements", "sweeps", "resistances", "curves"}
+        Which vocabulary applies.
+    previous : HeaderSpec, optional
+        The column to the left; a bare ``±`` header is its uncertainty.
+    context : collection of str, optional
+        Canonical columns already in the table; they settle an uncertainty
+        header that could belong to two of them (``T_err (%)``).
+
+    Returns
+    -------
+    HeaderSpec
+        ``column`` (canonical name), ``scale`` [-] and ``offset`` [canonical
+        unit] so that canonical = value × scale + offset, ``unit`` as written
+        and ``role``.
+
+    Raises
+    ------
+    InputError
+        If the name or unit is not understood or is ambiguous; the message
+        quotes the header and lists what is accepted.
+    """
+    if kind not in KINDS:
+        raise InputError(f"kind must be one of {sorted(KINDS)}, got {kind!r}")
+    allowed = KINDS[kind]
+    if not text.strip():
+        return HeaderSpec("", "", role="unnamed")
+    if _EXTRA.match(norm_name(text)):
+        return HeaderSpec(clean_extra(text), "", role="extra")
+    try:
+        found, reasons = _plain(text, allowed)
+        err_found, err_reasons = _error_readings(text, allowed, previous)
+    except ValueError as exc:  # e.g. an ambiguous MOHM
+        raise InputError(f"header {text!r}: {exc}") from exc
+    found += err_found
+    columns = {f.column for f in found}
+    if len(columns) > 1 and len({f.column for f in found if f.quantity in context}) == 1:
+        found = [f for f in found if f.quantity in context]
+        columns = {found[0].column}
+    if len(columns) == 1:
+        return found[0]
+    if len(columns) > 1:
+        raise InputError(f"header {text!r} is ambiguous: it could be {', '.join(sorted(columns))}")
+    why = "; ".join(dict.fromkeys(reasons + err_reasons)) or "no quantity of this name"
+    raise InputError(f"header {text!r} is not understood ({why}).\n{accepted_headers(kind)}")
+
+
+def accepted_headers(kind: str = "measurements") -> str:
+    """Readable list of the headers a table of ``kind`` may have.
+
+    Parameters
+    ----------
+    kind : {"measurements", "sweeps", "resistances", "curves"}
+
+    Returns
+    -------
+    str
+        One line per canonical column: accepted names, then accepted units.
+    """
+    if kind not in KINDS:
+        raise InputError(f"kind must be one of {sorted(KINDS)}, got {kind!r}")
+    lines = [f"Accepted headers for {kind} tables (case-insensitive):"]
+    for col in KINDS[kind]:
+        q = QUANTITIES[col]
+        units = "text" if q.units is None else f"units: {U.display(q.units)}"
+        lines.append(f"  {col}: {', '.join(q.aliases)} -- {units}")
+    lines.append(
+        "  uncertainty of any number X: 'X_err', 'X error', 'X uncertainty', '± X', 'δX', "
+        "'σ(X)', or a bare '±' right of X; own unit, or % of X"
+    )
+    lines.append(
+        "  free columns kept as they are: headers starting with 'nominal' or 'x_' "
+        "(e.g. 'nominal Al (%)', 'x_O2 pressure (mTorr)')"
+    )
+    return "\n".join(lines)
+
+
+# ------------------------------------------------------ the table's text
+_NEWLINE = re.compile(rb"\r\n|\r|\n")
+
+
+class _Cells(NamedTuple):
+    columns: list  # per header column: np.ndarray (parsed numbers) or pa.Array (text)
+    lines: np.ndarray  # physical line of each row
+    messages: list  # (row index, message)
+
+
+def _find_header(utf8: bytes, name: str) -> tuple[int, str, int]:
+    """Physical line, text and end offset of the header (first non-blank, non-# line)."""
+    pos, line = 0, 0
+    while pos <= len(utf8):
+        m = _NEWLINE.search(utf8, pos)
+        end, nxt = (m.start(), m.end()) if m else (len(utf8), len(utf8) + 1)
+        line += 1
+        s = utf8[pos:end].strip()
+        if s and not s.startswith(b"#") and s.strip(b",;\t \x0b\x0c"):
+            return line, utf8[pos:end].decode("utf-8"), min(nxt, len(utf8))
+        pos = nxt
+    raise ReadError(f"{name}: no header line (empty, or only blank and # comment lines)")
+
+
+def _sniff(header: str) -> str:
+    counts = {d: header.count(d) for d in ("\t", ";", ",")}
+    best = max(counts, key=lambda d: counts[d])  # ties go to tab, then semicolon
+    return best if counts[best] else ","
+
+
+# ------------------------------------------------------------ cells out
+def _read_arrow(body: memoryview, ncols: int, delim: str, types: dict | None, decimal: str):
+    """Columns read by pyarrow; None if a cell did not convert, "parse" if a line is ragged."""
+    names = [f"c{j}" for j in range(ncols)]
+    types = types or dict.fromkeys(names, pa.string())
+    try:
+        table = pcsv.read_csv(
+            pa.py_buffer(body),
+            read_options=pcsv.ReadOptions(column_names=names),
+            parse_options=pcsv.ParseOptions(delimiter=delim, ignore_empty_lines=False),
+            convert_options=pcsv.ConvertOptions(
+                column_types=types,
+                null_values=U.ARROW_NULLS,
+                strings_can_be_null=False,
+                quoted_strings_can_be_null=False,
+                decimal_point=decimal,
+            ),
+        )
+    except (pa.ArrowInvalid, pa.ArrowNotImplementedError) as exc:
+        return "parse" if "CSV parse error" in str(exc) else None
+    cols = []
+    for j in range(ncols):
+        col = table.column(j)
+        cols.append(col.to_numpy() if pa.types.is_floating(col.type) else col.combine_chunks())
+    return cols
+
+
+def _empty_row_mask(cols: list, numeric: list[bool], n: int) -> np.ndarray:
+    """Rows without a value in any cell (blank lines, only delimiters or missing markers)."""
+    empty = np.ones(n, bool)
+    for c, num in zip(cols, numeric, strict=True):
+        if not empty.any():
+            break
+        if isinstance(c, np.ndarray):
+            empty &= np.isnan(c)
+        elif num:
+            cell = pc.utf8_lower(pc.utf8_trim_whitespace(c))
+            empty &= np.asarray(pc.is_in(cell, value_set=pa.array(U.MISSING)), bool)
+        else:
+            empty &= np.asarray(pc.equal(pc.utf8_trim_whitespace(c), ""), bool)
+    return empty
+
+
+def _fast_cells(buf: bytes, start: int, end: int, specs, delim: str, first: int, decimal: str):
+    """Vectorised read of ``buf[start:end]``; None when it needs the line-by-line reader."""
+    if start >= end:
+        return _Cells([pa.array([], pa.string()) for _ in specs], np.zeros(0, np.int64), [])
+    if buf.find(b"\r", start, end) >= 0 and buf.count(b"\r", start, end) != buf.count(
+        b"\r\n", start, end
+    ):
+        return None  # lone CR line ends: count lines the slow way
+    body = memoryview(buf)[start:end]
+    numeric = [s.role in ("value", "error", "relative_error") for s in specs]
+    types = {f"c{j}": pa.float64() if num else pa.string() for j, num in enumerate(numeric)}
+    cols = _read_arrow(body, len(specs), delim, types, decimal)
+    if cols is None:  # a cell is not a plain number: read text, convert column by column
+        cols = _read_arrow(body, len(specs), delim, None, decimal)
+    if not isinstance(cols, list):  # ragged or comment lines
+        return None
+    n = len(cols[0])
+    if buf.find(b'"', start, end) >= 0 and n != buf.count(b"\n", start, end) + 1:
+        return None  # a quoted line break: line numbers would drift
+    if (
+        not isinstance(cols[0], np.ndarray)
+        and pc.any(pc.starts_with(pc.utf8_ltrim_whitespace(cols[0]), "#")).as_py()
+    ):
+        return None
+    lines = np.arange(first, first + n, dtype=np.int64)
+    empty = _empty_row_mask(cols, numeric, n)
+    if empty.any():
+        keep = ~empty
+        cols = [c[keep] if isinstance(c, np.ndarray) else c.filter(pa.array(keep)) for c in cols]
+        lines = lines[keep]
+    return _Cells(cols, lines, [])
+
+
+def _physical_lines(buf: bytes, start: int, end: int) -> pa.Array:
+    """One string per physical line (CRLF, LF or CR ends), quotes not interpreted."""
+    body = memoryview(buf)[start:end]
+    for sep in "\x01\x02\x03\x04\x05\x06":
+        if buf.find(sep.encode(), start, end) < 0:
+            try:
+                return pcsv.read_csv(
+                    pa.py_buffer(body),
+                    read_options=pcsv.ReadOptions(column_names=["line"]),
+                    parse_options=pcsv.ParseOptions(
+                        delimiter=sep, quote_char=False, ignore_empty_lines=False
+                    ),
+                    convert_options=pcsv.ConvertOptions(
+                        column_types={"line": pa.string()}, strings_can_be_null=False
+                    ),
+                ).column(0).combine_chunks()  # fmt: skip
+            except pa.ArrowInvalid:  # e.g. a line longer than a read block
+                break
+    text = body.tobytes().decode("utf-8")
+    return pa.array(text.replace("\r\n", "\n").replace("\r", "\n").split("\n"), pa.string())
+
+
+def _odd_line(line: str, ncols: int, tail: int, delim: str, where: str) -> tuple[list[str], str]:
+    """Fields of a line with quotes or the wrong number of delimiters, and a problem (or '')."""
+    try:
+        fields = next(csv.reader([line], delimiter=delim)) if '"' in line else line.split(delim)
+    except csv.Error:  # e.g. a field longer than the csv module allows
+        fields = []
+    if len(fields) > ncols and not "".join(fields[ncols:]).strip():
+        fields = fields[:ncols]  # trailing empty fields of a spreadsheet export
+    if ncols - tail <= len(fields) < ncols:
+        fields += [""] * (ncols - len(fields))  # the missing fields have no header anyway
+    if line.count('"') % 2:
+        return [""] * ncols, f"{where}: unbalanced '\"' quote; columns 1-{ncols} not read"
+    if len(fields) != ncols:
+        extra = len(fields) > ncols
+        what = (
+            f"column {ncols + 1} onwards has no header"
+            if extra
+            else f"columns {len(fields) + 1}-{ncols} are missing"
+        )
+        return [""] * ncols, (
+            f"{where}: {len(fields)} fields but the header has {ncols} ({what}); "
+            f"line not read: {line[:120]!r}"
+        )  # fmt: skip
+    return fields, ""
+
+
+def _slow_cells(buf: bytes, start: int, end: int, specs, delim: str, first: int, name: str):
+    """Reader for files with comment, blank or ragged lines, quoted line breaks, lone CRs.
+
+    Lines are classified with vectorised string kernels; clean lines go through
+    pyarrow in one pass, and only lines with quotes or a wrong number of
+    delimiters are split in Python.
+    """
+    lines = _physical_lines(buf, start, end)
+    ncols = len(specs)
+    tail = next((k for k, sp in enumerate(reversed(specs)) if sp.role != "unnamed"), ncols)
+    stripped = pc.utf8_trim_whitespace(lines)
+    skip = pc.or_(
+        pc.starts_with(stripped, "#"), pc.equal(pc.utf8_trim(stripped, delim + " \t"), "")
+    )
+    idx = np.flatnonzero(~np.asarray(skip, bool))
+    data = lines.take(pa.array(idx, pa.int64()))
+    simple = np.asarray(
+        pc.and_(
+            pc.equal(pc.count_substring(data, '"'), 0),
+            pc.equal(pc.count_substring(data, delim), ncols - 1),
+        ),
+        bool,
+    )
+    cols = None
+    if simple.any():
+        joined = pc.binary_join_element_wise(data.filter(pa.array(simple)), pa.scalar(""), "\n")
+        offsets = np.frombuffer(joined.buffers()[1], dtype=np.int32)
+        body = memoryview(joined.buffers()[2])[offsets[0] : offsets[len(joined)] - 1]
+        cols = _read_arrow(body, ncols, delim, None, ".")
+    if not isinstance(cols, list):  # nothing simple, or pyarrow refused it: split in Python
+        simple[:] = False
+        cols = [pa.array([], pa.string()) for _ in specs]
+    messages, odd_rows = [], []
+    for r in np.flatnonzero(~simple):
+        line = data[int(r)].as_py()
+        fields, problem = _odd_line(line, ncols, tail, delim, f"{name}, line {first + idx[r]}")
+        odd_rows.append(fields)
+        if problem:
+            messages.append((int(r), problem))
+    n_simple = int(simple.sum())
+    perm = np.empty(len(idx), np.int64)
+    perm[simple] = np.arange(n_simple)
+    perm[~simple] = n_simple + np.arange(len(odd_rows))
+    order = pa.array(perm)
+    cols = [
+        pa.concat_arrays([cols[j], pa.array([f[j] for f in odd_rows], pa.string())]).take(order)
+        for j in range(ncols)
+    ]
+    keep = ~_empty_row_mask(
+        cols, [s.role in ("value", "error", "relative_error") for s in specs], len(idx)
+    )
+    keep[[r for r, _ in messages]] = True  # a refused line stays, with its message
+    new_index = np.cumsum(keep) - 1
+    messages = [(int(new_index[r]), m) for r, m in messages]
+    cols = [c.filter(pa.array(keep)) for c in cols]
+    return _Cells(cols, (first + idx[keep]).astype(np.int64), messages)
+
+
+def _parse_headers(headers: list[str], kind: str, name: str, line: int) -> list[HeaderSpec]:
+    specs: list[HeaderSpec] = []
+    seen: dict[str, int] = {}
+    for j, text in enumerate(headers, start=1):
+        try:
+            spec = parse_header(
+                text, kind=kind, previous=specs[-1] if specs else None, context=seen
+            )
+        except InputError as exc:
+            hint = "" if len(headers) > 1 else " (no comma, semicolon or tab delimiter found)"
+            raise InputError(f"{name}, line {line}, column {j}: {exc}{hint}") from exc
+        if spec.column and spec.column in seen:
+            raise InputError(
+                f"{name}, line {line}: columns {seen[spec.column]} ({headers[seen[spec.column] - 1]!r})"
+                f" and {j} ({text!r}) both give {spec.column}; keep one"
+            )
+        seen.setdefault(spec.column, j) if spec.column else None
+        specs.append(spec)
+    for spec in specs:
+        if spec.role == "relative_error" and spec.quantity not in seen:
+            j = seen[spec.column]
+            raise InputError(
+                f"{name}, line {line}, column {j}: {headers[j - 1]!r} is relative (%) but the "
+                f"table has no {spec.quantity} column to take it of"
+            )
+    return specs
+
+
+def _decimal(buf: bytes, start: int, end: int, delim: str) -> str:
+    """',' if the first lines of a semicolon/tab file write numbers with decimal commas."""
+    if delim == ",":
+        return "."
+    head = buf[start : min(end, start + 65536)].decode("utf-8", "ignore").splitlines()[:200]
+    pat = re.compile(r"^\s*[+-]?\d*,\d+(?:[eE][+-]?\d+)?\s*$")
+    return "," if any(pat.match(f) for ln in head for f in ln.split(delim)) else "."
+
+
+def read_frame(buf: bytes, name: str, kind: str, encoding: str):
+    """The work of :func:`mottkit.ingest.read_table` on the file's UTF-8 bytes."""
+    hline, htext, start = _find_header(buf, name)
+    delim = _sniff(htext)
+    try:
+        headers = [h.strip() for h in next(csv.reader([htext], delimiter=delim))]
+    except csv.Error as exc:
+        raise InputError(f"{name}, line {hline}: the header cannot be split: {exc}") from exc
+    specs = _parse_headers(headers, kind, name, hline)
+    end = len(buf)
+    while end > start and buf[end - 1] in b"\r\n":
+        end -= 1
+    decimal = _decimal(buf, start, end, delim)
+    cells = _fast_cells(buf, start, end, specs, delim, hline + 1, decimal)
+    if cells is None:
+        cells = _slow_cells(buf, start, end, specs, delim, hline + 1, name)
+    return U.assemble(cells, specs, headers, name, delim, kind, attrs={"encoding": encoding})
