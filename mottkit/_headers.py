@@ -1,41 +1,27 @@
-"""Headers and cells: from a table's text to header specs and cells (private).
+"""Headers and cells: from a table's bytes to header specs and cells (private).
 
 :func:`parse_header` turns one header cell into a :class:`HeaderSpec`
-(canonical column and conversion) using the vocabulary table of
-:mod:`mottkit._units`, and :func:`accepted_headers` renders that vocabulary
-for messages and the docs. :func:`read_frame` does the work of
-:func:`mottkit.ingest.read_table`: decode the bytes, find the header line,
-sniff the delimiter, and split the data lines into cells, in one vectorised
-pyarrow pass when the file is clean and line by line when it has comment,
-blank or ragged lines.
+(canonical column and conversion) using the vocabulary of
+:mod:`mottkit._units`; :func:`accepted_headers` renders that vocabulary for
+messages and the docs. The header forms (``name (unit)``, ``name [unit]``,
+``name / unit``, glued ``name_unit``, a power-of-ten multiplier, the
+uncertainty forms and the free ``nominal``/``x_`` columns) are described with
+their reasons in ``docs/input-format.md``; a bare ``d`` prefix is not read as
+an uncertainty (it is as often a difference or a derivative).
 
-Header forms, matched case-insensitively (``_``, ``-``, ``.`` and spaces in
-names are equivalent):
-
-* ``name (unit)``, ``name [unit]``, ``name / unit``, ``name, unit``;
-* glued glossary style ``name_unit`` (``density_cm3``, ``mobility_cm2_vs``),
-  where the unit is written without signs or slashes and is matched on its
-  symbols and the sizes of their powers;
-* a power-of-ten multiplier in front of the unit, ``n (1e18 cm^-3)`` or
-  ``n [10^18 cm-3]``: cells are multiplied by it;
-* uncertainties: ``n_err``, ``n error``, ``n uncertainty``, ``n unc``,
-  ``n std``, ``± n``, ``+/- n``, ``δn``, ``Δn``, ``σ(n)``, ``u(n)``, each with
-  its own unit (``σ(n) (cm^-3)``), or a bare ``±`` right of the column it
-  belongs to, in that column's unit unless it gives one. A unit of ``%`` makes
-  it relative to the value in the same row. A bare ``d`` prefix (``dn``,
-  ``dT``) is *not* read as an uncertainty: it is as often a difference or a
-  derivative, so such a header is refused with the accepted forms;
-* free columns: a header starting with ``nominal`` or ``x_`` (or just ``x``),
-  e.g. ``nominal Al (%)``, ``x_O2 pressure (mTorr)``, is kept as it is under
-  a cleaned name (``nominal_al_pct``, ``x_o2_pressure_mtorr``), numeric when
-  every cell is a number. Any other header that matches nothing is refused,
-  so that a misspelt quantity is never carried along unread.
+:func:`load` and :func:`to_utf8` get a source's bytes (read-only) and decode
+them; :func:`read_frame` finds the header line, sniffs the delimiter and
+splits the data lines into cells: in one vectorised pyarrow pass when the
+file is clean, with lines classified by vectorised kernels (only odd lines
+split in Python) when it has comment, blank or ragged lines.
 """
 
 from __future__ import annotations
 
+import codecs
 import csv
 import difflib
+import os
 import re
 import unicodedata
 from typing import NamedTuple
@@ -329,6 +315,72 @@ def accepted_headers(kind: str = "measurements") -> str:
 
 
 # ------------------------------------------------------ the table's text
+NOT_PLAIN = (codecs.BOM_UTF8, codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE)  # decode first
+
+
+def load(source) -> tuple[bytes | str, str]:
+    """The bytes (or text) of a path, bytes object or buffer, and a name for messages."""
+    if isinstance(source, (bytes, bytearray, memoryview)):  # the file's content itself
+        return bytes(source), "<bytes>"
+    if isinstance(source, (str, os.PathLike)):
+        name = os.fspath(source)
+        try:
+            with open(name, "rb") as fh:  # read-only: the raw file is never written
+                return fh.read(), name
+        except OSError as exc:
+            hint = " (to read table text, pass io.StringIO(text))" if "\n" in name else ""
+            raise ReadError(f"{name[:200]}: cannot be read: {exc.strerror or exc}{hint}") from exc
+    if hasattr(source, "read"):
+        data = source.read()
+        name = getattr(source, "name", None)
+        name = os.fspath(name) if isinstance(name, (str, os.PathLike)) else "<buffer>"
+        if isinstance(data, (str, bytes)):
+            return data, name
+        raise ReadError(f"{name}: read() gave {type(data).__name__}, not text or bytes")
+    raise InputError(
+        f"source must be a path, bytes or a text/bytes buffer, got {type(source).__name__}"
+    )
+
+
+def to_utf8(data: bytes | str, name: str) -> tuple[bytes, str]:
+    """Valid UTF-8 bytes of the file (BOM removed) and the encoding it was in."""
+    if isinstance(data, str):
+        if "\x00" in data:
+            raise ReadError(f"{name}: contains NUL characters; not a text table")
+        return data.removeprefix("\ufeff").encode("utf-8", "replace"), "text"
+    if data.startswith((codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE)):
+        try:
+            return data.decode("utf-16").encode("utf-8"), "utf-16"
+        except UnicodeDecodeError as exc:
+            raise ReadError(f"{name}: has a UTF-16 byte-order mark but is not UTF-16") from exc
+    if b"\x00" in data:
+        raise ReadError(f"{name}: contains NUL bytes; not a text table (UTF-16 needs a BOM)")
+    encoding = "utf-8"
+    if data.startswith(codecs.BOM_UTF8):
+        data, encoding = data[3:], "utf-8-sig"
+    if data.isascii():
+        return data, encoding
+    try:
+        data.decode("utf-8")
+        return data, encoding
+    except UnicodeDecodeError:
+        pass
+    # Not UTF-8 throughout: decode line by line, so that a UTF-8 header survives
+    # next to lines typed in Windows-1252 (Latin-1 plus printable 0x80-0x9F).
+    used, out = set(), []
+    for line in re.split(rb"(\r\n|\r|\n)", data):  # line ends kept as parts of their own
+        for enc in ("utf-8", "cp1252", "latin-1"):
+            try:
+                text = line.decode(enc)
+            except UnicodeDecodeError:
+                continue
+            used.add(enc if not line.isascii() else "ascii")
+            out.append(text)
+            break
+    legacy = "cp1252" if "cp1252" in used else "latin-1"
+    return "".join(out).encode("utf-8"), ("utf-8+" if "utf-8" in used else "") + legacy
+
+
 _NEWLINE = re.compile(rb"\r\n|\r|\n")
 
 

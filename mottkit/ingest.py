@@ -1,44 +1,31 @@
 """Read measurement tables written by hand or exported from spreadsheets.
 
-:func:`read_table` is the generic reader: it sniffs the delimiter (comma,
-semicolon or tab), reads decimal commas in semicolon and tab files, decodes
-UTF-8 (with or without BOM), UTF-16 with BOM, or else line by line UTF-8 or
-Windows-1252/Latin-1, skips blank lines, ``#`` comment lines and lines of only delimiters, maps every
-header to a canonical column (see :func:`accepted_headers` and
-``docs/input-format.md``) and converts every value to the canonical unit.
-Every data line of the file becomes one row, in order, with ``source_file``,
-``source_line`` (1-based physical line), ``row_status`` ('ok' or 'invalid')
-and ``row_message``. A cell that is not a number, a non-physical value and a
-ragged line make the row invalid, with a message naming file, line, column
-and the offending text; the value becomes NaN and the row stays. Empty cells
-and ``nan``, ``NA``, ``n/a``, ``null``, ``none``, ``-``, ``--``, ``—``, ``?``
-are missing values, not errors (in a carrier-type column ``-`` and ``+`` are
-the carrier signs). Files are opened read-only.
-
-:func:`read_measurements` also derives what is missing (carrier density from
-sheet density or Hall coefficient, resistivity, mobility, carrier type) with
-uncertainties, and flags redundant columns that disagree. :func:`read_sweeps`,
-:func:`read_resistances` and :func:`read_curves` check that the columns their
-analysis needs are there.
+:func:`read_table` reads any of the four kinds of table into canonical
+columns and units, one row per data line with ``source_file``,
+``source_line``, ``row_status`` and ``row_message``; bad cells and ragged
+lines make their row invalid, never disappear. :func:`read_measurements`
+also derives the missing transport quantities with uncertainties and flags
+redundant columns that disagree; :func:`read_sweeps`, :func:`read_resistances`
+and :func:`read_curves` check that the columns their analysis needs are
+there. The accepted file and header forms are in ``docs/input-format.md``
+(and :func:`accepted_headers`). Files are opened read-only.
 """
 
 from __future__ import annotations
 
-import codecs
-import os
-import re
 from typing import NamedTuple
 
 import numpy as np
 import pandas as pd
 import pyarrow as pa
+import pyarrow.compute as pc
 from scipy import constants as sc
 
 from . import _headers as H
 from ._headers import HeaderSpec, accepted_headers, parse_header
 from ._units import KINDS, QUANTITIES, cell_message, set_status
 from ._validate import non_negative, positive
-from .errors import InputError, ReadError
+from .errors import InputError
 
 __all__ = [
     "HeaderSpec",
@@ -101,71 +88,14 @@ def read_table(source, *, kind: str = "measurements") -> pd.DataFrame:
     """
     if kind not in KINDS:
         raise InputError(f"kind must be one of {sorted(KINDS)}, got {kind!r}")
-    data, name = _load(source)
-    buf, encoding = _to_utf8(data, name)
+    data, name = H.load(source)
+    if isinstance(data, bytes) and not data.startswith(H.NOT_PLAIN) and b"\x00" not in data:
+        try:  # as UTF-8 unchecked: pyarrow checks every text cell, and bad bytes fail numbers
+            return H.read_frame(data, name, kind, "utf-8")
+        except UnicodeDecodeError:  # the slow path met a non-UTF-8 line: decode properly
+            pass
+    buf, encoding = H.to_utf8(data, name)
     return H.read_frame(buf, name, kind, encoding)
-
-
-def _load(source) -> tuple[bytes | str, str]:
-    if isinstance(source, (bytes, bytearray, memoryview)):  # the file's content itself
-        return bytes(source), "<bytes>"
-    if isinstance(source, (str, os.PathLike)):
-        name = os.fspath(source)
-        try:
-            with open(name, "rb") as fh:  # read-only: the raw file is never written
-                return fh.read(), name
-        except OSError as exc:
-            hint = " (to read table text, pass io.StringIO(text))" if "\n" in name else ""
-            raise ReadError(f"{name[:200]}: cannot be read: {exc.strerror or exc}{hint}") from exc
-    if hasattr(source, "read"):
-        data = source.read()
-        name = getattr(source, "name", None)
-        name = os.fspath(name) if isinstance(name, (str, os.PathLike)) else "<buffer>"
-        if isinstance(data, (str, bytes)):
-            return data, name
-        raise ReadError(f"{name}: read() gave {type(data).__name__}, not text or bytes")
-    raise InputError(
-        f"source must be a path, bytes or a text/bytes buffer, got {type(source).__name__}"
-    )
-
-
-def _to_utf8(data: bytes | str, name: str) -> tuple[bytes, str]:
-    """Valid UTF-8 bytes of the file (BOM removed) and the encoding it was in."""
-    if isinstance(data, str):
-        if "\x00" in data:
-            raise ReadError(f"{name}: contains NUL characters; not a text table")
-        return data.removeprefix("\ufeff").encode("utf-8", "replace"), "text"
-    if data.startswith((codecs.BOM_UTF16_LE, codecs.BOM_UTF16_BE)):
-        try:
-            return data.decode("utf-16").encode("utf-8"), "utf-16"
-        except UnicodeDecodeError as exc:
-            raise ReadError(f"{name}: has a UTF-16 byte-order mark but is not UTF-16") from exc
-    if b"\x00" in data:
-        raise ReadError(f"{name}: contains NUL bytes; not a text table (UTF-16 needs a BOM)")
-    encoding = "utf-8"
-    if data.startswith(codecs.BOM_UTF8):
-        data, encoding = data[3:], "utf-8-sig"
-    if data.isascii():
-        return data, encoding
-    try:
-        data.decode("utf-8")
-        return data, encoding
-    except UnicodeDecodeError:
-        pass
-    # Not UTF-8 throughout: decode line by line, so that a UTF-8 header survives
-    # next to lines typed in Windows-1252 (Latin-1 plus printable 0x80-0x9F).
-    used, out = set(), []
-    for line in re.split(rb"(\r\n|\r|\n)", data):  # line ends kept as parts of their own
-        for enc in ("utf-8", "cp1252", "latin-1"):
-            try:
-                text = line.decode(enc)
-            except UnicodeDecodeError:
-                continue
-            used.add(enc if not line.isascii() else "ascii")
-            out.append(text)
-            break
-    legacy = "cp1252" if "cp1252" in used else "latin-1"
-    return "".join(out).encode("utf-8"), ("utf-8+" if "utf-8" in used else "") + legacy
 
 
 # ------------------------------------------------------------- derivations
@@ -370,138 +300,163 @@ def _get(df: pd.DataFrame, col: str) -> np.ndarray:
     return df[col].to_numpy(float) if col in df else np.full(len(df), np.nan)
 
 
-def _derive(df: pd.DataFrame, dead: float, tol: float) -> pd.DataFrame:
-    n, name = len(df), df.attrs["source_file"]
-    nan = np.full(n, np.nan)
-    nan.flags.writeable = False  # one shared array for every absent column
+class _Inputs:
+    """The file's numeric columns for the derivations (absent ones all NaN, shared)."""
 
-    def get(col):  # the file's values (before any filling)
-        return df[col].to_numpy(float) if col in df else nan
+    def __init__(self, df: pd.DataFrame):
+        self.df, self.n = df, len(df)
+        self.nan = np.full(self.n, np.nan)
+        self.nan.flags.writeable = False
 
-    def bad(col):
-        return df.attrs.get("invalid_cells", {}).get(col, [])
+    def __call__(self, col: str) -> np.ndarray:
+        return self.df[col].to_numpy(float) if col in self.df else self.nan
 
-    def rel(col):
-        if f"{col}_err" not in df:
-            return nan
+    def rel(self, col: str) -> np.ndarray:
+        """Relative one-sigma error [-] of a column (NaN without an ``_err`` column)."""
+        if f"{col}_err" not in self.df:
+            return self.nan
         with np.errstate(divide="ignore", invalid="ignore"):
-            return np.abs(get(f"{col}_err") / get(col))
+            return np.abs(self(f"{col}_err") / self(col))
 
-    def est(label, needs, value, rel_, power):  # an estimate, if the file has its inputs
-        return _Estimate(label, value(), rel_(), power) if all(c in df for c in needs) else None
+    def given(self, *cols: str) -> np.ndarray:
+        """Rows where the file gives a value in any of ``cols``."""
+        out = np.zeros(self.n, bool)
+        for col in cols:
+            if col in self.df:
+                out |= ~np.isnan(self(col))
+        return out
 
-    cautions = _Cautions(n)
+    def refused(self, col: str) -> list[int]:
+        return self.df.attrs.get("invalid_cells", {}).get(col, [])
+
+    def estimate(self, label, needs, value, rel, power):
+        """An :class:`_Estimate` (``value``/``rel`` are callables), None without its inputs."""
+        return (
+            _Estimate(label, value(), rel(), power) if all(c in self.df for c in needs) else None
+        )
+
+    def as_given(self, col: str):
+        return self.estimate("the given value", [col], lambda: self(col), lambda: self.rel(col), 0)
+
+
+def _derive(df: pd.DataFrame, dead: float, tol: float) -> pd.DataFrame:
+    get, n, name, cautions = _Inputs(df), len(df), df.attrs["source_file"], _Cautions(len(df))
     t, dl = get("thickness_nm"), get("dead_layer_nm")
     dl = np.where(np.isnan(dl), dead, dl)
     thin = (t - dl) <= 0
     if thin.any():
         head = df.attrs["headers"]["thickness_nm"]
         j = list(df.attrs["headers"]).index("thickness_nm") + 1
-        set_status(df, [(int(i), cell_message(name, df.source_line[i], j, head, f"thickness {t[i]:g} nm is not above the dead layer {dl[i]:g} nm")) for i in np.flatnonzero(thin)], append=True)  # fmt: skip
+        why = "thickness {:g} nm is not above the dead layer {:g} nm"
+        msgs = [(int(i), cell_message(name, df.source_line[i], j, head, why.format(t[i], dl[i])))
+                for i in np.flatnonzero(thin)]  # fmt: skip
+        set_status(df, msgs, append=True)
     teff = np.where(thin, np.nan, t - dl) * _NM_TO_CM
-    rel_t = nan
+    rel_t = get.nan
     if "thickness_nm_err" in df or "dead_layer_nm_err" in df:
         with np.errstate(invalid="ignore"):
             rel_t = _quad(get("thickness_nm_err"), get("dead_layer_nm_err")) * _NM_TO_CM / teff
-    e, R, T = sc.e, "resistivity_ohm_cm", "thickness_nm"
-    rh, rhs = get("hall_coefficient_cm3_c"), get("sheet_hall_coefficient_cm2_c")
     with np.errstate(divide="ignore", invalid="ignore"):
-        rho, rho_err, rho_rel, rho_p, _ = _choose(
-            [
-                est("the given value", [R], lambda: get(R), lambda: rel(R), 0),
-                est("sheet_resistance_ohm_sq × (thickness − dead layer)", ["sheet_resistance_ohm_sq", T],
-                    lambda: get("sheet_resistance_ohm_sq") * teff, lambda: rel("sheet_resistance_ohm_sq"), 1),
-            ],
-            tol, rel_t, cautions, R, refused=bad(R),
-        )  # fmt: skip
-        dens, dens_err, n_rel, n_p, n_src = _choose(
-            [
-                est("the given value", ["density_cm3"], lambda: get("density_cm3"), lambda: rel("density_cm3"), 0),
-                est("sheet_density_cm2 / (thickness − dead layer)", ["sheet_density_cm2", T],
-                    lambda: get("sheet_density_cm2") / teff, lambda: rel("sheet_density_cm2"), -1),
-                est("1/(e|R_H|)", ["hall_coefficient_cm3_c"], lambda: 1 / (e * np.abs(rh)),
-                    lambda: rel("hall_coefficient_cm3_c"), 0),
-                est("1/(e|R_H,s| (thickness − dead layer))", ["sheet_hall_coefficient_cm2_c", T],
-                    lambda: 1 / (e * np.abs(rhs) * teff), lambda: rel("sheet_hall_coefficient_cm2_c"), -1),
-            ],
-            tol, rel_t, cautions, "density_cm3", refused=bad("density_cm3"),
-            # last resort, not compared: it would repeat the mobility check
-            fallback=est("1/(e μ ρ)", ["mobility_cm2_vs"], lambda: 1 / (e * get("mobility_cm2_vs") * rho),
-                         lambda: _quad(rel("mobility_cm2_vs"), rho_rel), -rho_p),
-        )  # fmt: skip
-        mu, mu_err, *_ = _choose(
-            [
-                est("the given value", ["mobility_cm2_vs"], lambda: get("mobility_cm2_vs"),
-                    lambda: rel("mobility_cm2_vs"), 0),
-                _Estimate("1/(e n ρ)", 1 / (e * dens * rho), _quad(n_rel, rho_rel), -(n_p + rho_p)),
-            ],
-            tol, rel_t, cautions, "mobility_cm2_vs", refused=bad("mobility_cm2_vs"),
-        )  # fmt: skip
-        ns, ns_err, *_ = _choose(
-            [
-                est("the given value", ["sheet_density_cm2"], lambda: get("sheet_density_cm2"),
-                    lambda: rel("sheet_density_cm2"), 0),
-                _Estimate("density × thickness", dens * teff, n_rel, n_p + 1),
-            ],
-            np.inf, rel_t, cautions, "", refused=bad("sheet_density_cm2"),
-        )  # fmt: skip
-        rs, rs_err, *_ = _choose(
-            [
-                est("the given value", ["sheet_resistance_ohm_sq"], lambda: get("sheet_resistance_ohm_sq"),
-                    lambda: rel("sheet_resistance_ohm_sq"), 0),
-                _Estimate("resistivity / thickness", rho / teff, rho_rel, rho_p - 1),
-            ],
-            np.inf, rel_t, cautions, "", refused=bad("sheet_resistance_ohm_sq"),
-        )  # fmt: skip
-    given_type = df["carrier_type"].to_numpy(object) if "carrier_type" in df else np.full(n, None)
-    signs = [
-        ("the given value", np.select([given_type == "n", given_type == "p"], [-1, 1], 0)),
-        ("the sign of R_H", np.nan_to_num(np.sign(rh)).astype(int)),
-        ("the sign of R_H,s", np.nan_to_num(np.sign(rhs)).astype(int)),
-    ]
-    sign, sign_src = np.zeros(n, int), np.full(n, -1)
+        out, n_src = _volume_values(get, teff, rel_t, tol, cautions)
+    sign, given_sign = _carrier_sign(get, cautions)
+    cautions.add(np.isin(n_src, (2, 3)), "hall_single_carrier",
+                 "n = 1/(e|R_H|) assumes a single carrier type and a Hall factor of 1")  # fmt: skip
+    volume = get.given("density_cm3", "resistivity_ohm_cm", "hall_coefficient_cm3_c")
+    cautions.add((dl > 0) & volume, "dead_layer_not_applied", "The dead layer is applied to "
+                 "sheet values only; volume values given in the file are used as they are")  # fmt: skip
+    sheet = get.given(
+        "sheet_density_cm2", "sheet_resistance_ohm_sq", "sheet_hall_coefficient_cm2_c"
+    )
+    cautions.add(sheet & np.isnan(t), "thickness_missing",
+                 "No thickness_nm: sheet values could not be turned into volume values")  # fmt: skip
+    cautions.add(np.isnan(out["density_cm3"]), "no_density",
+                 "No carrier density given or derivable, so the row cannot be screened")  # fmt: skip
+    news = {col: ~get.given(col) & ~np.isnan(out[col]) for col in _FILLED}
+    news["carrier_type"] = (given_sign == 0) & (sign != 0)
+    for col in _FILLED:  # a given value keeps its given uncertainty
+        if f"{col}_err" in df:
+            out[f"{col}_err"] = np.where(get.given(col), get(f"{col}_err"), out[f"{col}_err"])
+    out["carrier_type"] = _text(pa.array(["n", None, "p"]).take(pa.array(sign + 1)))
+    out["dead_layer_nm"] = dl
+    out["derived"], out["cautions"] = _text(_combine(news, n)), _text(cautions.codes())
+    out["caution_text"] = _text(cautions.text())
+    return _ordered(df, "measurements", out)
+
+
+_FILLED = ("density_cm3", "sheet_density_cm2", "resistivity_ohm_cm", "sheet_resistance_ohm_sq",
+           "mobility_cm2_vs")  # fmt: skip
+
+
+def _volume_values(get: _Inputs, teff, rel_t, tol, cautions) -> tuple[dict, np.ndarray]:
+    """ρ, n, μ, n_s and R_s (each with ``_err``), filled in the order of the Notes."""
+    e, R, T = sc.e, "resistivity_ohm_cm", "thickness_nm"
+    rs_in, ns_in, rh_in, rhs_in = ("sheet_resistance_ohm_sq", "sheet_density_cm2",
+                                   "hall_coefficient_cm3_c", "sheet_hall_coefficient_cm2_c")  # fmt: skip
+    rho, rho_err, rho_rel, rho_p, _ = _choose([
+        get.as_given(R),
+        get.estimate("sheet_resistance_ohm_sq × (thickness − dead layer)", [rs_in, T],
+                     lambda: get(rs_in) * teff, lambda: get.rel(rs_in), 1),
+    ], tol, rel_t, cautions, R, refused=get.refused(R))  # fmt: skip
+    dens, dens_err, n_rel, n_p, n_src = _choose([
+        get.as_given("density_cm3"),
+        get.estimate("sheet_density_cm2 / (thickness − dead layer)", [ns_in, T],
+                     lambda: get(ns_in) / teff, lambda: get.rel(ns_in), -1),
+        get.estimate("1/(e|R_H|)", [rh_in], lambda: 1 / (e * np.abs(get(rh_in))),
+                     lambda: get.rel(rh_in), 0),
+        get.estimate("1/(e|R_H,s| (thickness − dead layer))", [rhs_in, T],
+                     lambda: 1 / (e * np.abs(get(rhs_in)) * teff), lambda: get.rel(rhs_in), -1),
+    ], tol, rel_t, cautions, "density_cm3", refused=get.refused("density_cm3"),
+        # last resort, not compared: it would repeat the mobility check
+        fallback=get.estimate("1/(e μ ρ)", ["mobility_cm2_vs"],
+                              lambda: 1 / (e * get("mobility_cm2_vs") * rho),
+                              lambda: _quad(get.rel("mobility_cm2_vs"), rho_rel), -rho_p),
+    )  # fmt: skip
+    mu, mu_err, *_ = _choose([
+        get.as_given("mobility_cm2_vs"),
+        _Estimate("1/(e n ρ)", 1 / (e * dens * rho), _quad(n_rel, rho_rel), -(n_p + rho_p)),
+    ], tol, rel_t, cautions, "mobility_cm2_vs", refused=get.refused("mobility_cm2_vs"))  # fmt: skip
+    ns, ns_err, *_ = _choose([
+        get.as_given(ns_in), _Estimate("density × thickness", dens * teff, n_rel, n_p + 1),
+    ], np.inf, rel_t, cautions, "", refused=get.refused(ns_in))  # fmt: skip
+    rs, rs_err, *_ = _choose([
+        get.as_given(rs_in), _Estimate("resistivity / thickness", rho / teff, rho_rel, rho_p - 1),
+    ], np.inf, rel_t, cautions, "", refused=get.refused(rs_in))  # fmt: skip
+    values = {"density_cm3": (dens, dens_err), ns_in: (ns, ns_err), R: (rho, rho_err),
+              rs_in: (rs, rs_err), "mobility_cm2_vs": (mu, mu_err)}  # fmt: skip
+    out = {}
+    for col, (value, err) in values.items():
+        out[col], out[f"{col}_err"] = value, err
+    return out, n_src
+
+
+def _carrier_sign(get: _Inputs, cautions) -> tuple[np.ndarray, np.ndarray]:
+    """Carrier sign per row (-1 'n', +1 'p', 0 unknown) and the sign the file gives."""
+    df, n = get.df, get.n
+    given = np.zeros(n, np.int8)
+    if "carrier_type" in df:
+        codes = pc.index_in(
+            pa.array(df["carrier_type"], pa.string()), value_set=pa.array(["n", "p"])
+        )
+        given = np.array([-1, 1, 0], np.int8)[pc.fill_null(codes, 2).to_numpy()]
+    signs = [("the given value", given)] + [
+        (label, np.sign(np.nan_to_num(get(col))).astype(np.int8))
+        for label, col in (("the sign of R_H", "hall_coefficient_cm3_c"),
+                           ("the sign of R_H,s", "sheet_hall_coefficient_cm2_c"))
+        if col in df
+    ]  # fmt: skip
+    sign, src = np.zeros(n, np.int8), np.full(n, -1, np.int8)
     for k, (_, sg) in enumerate(signs):
         take = (sign == 0) & (sg != 0)
-        sign[take], sign_src[take] = sg[take], k
-    sign[bad("carrier_type")] = 0  # an unreadable carrier type stays unknown
-    for label, sg in signs:
+        np.copyto(sign, sg, where=take)
+        np.copyto(src, k, where=take)
+    sign[get.refused("carrier_type")] = 0  # an unreadable carrier type stays unknown
+    word = {-1: "n", 1: "p"}
+    for label, sg in signs if len(signs) > 1 else ():
         off = (sg != 0) & (sign != 0) & (sg != sign)
-        word = {-1: "n", 1: "p"}
-        msg = [f"carrier_type: {signs[sign_src[i]][0]} is '{word[sign[i]]}', {label} gives '{word[sg[i]]}'; {signs[sign_src[i]][0]} is used" for i in np.flatnonzero(off)]  # fmt: skip
+        msg = [f"carrier_type: {signs[src[i]][0]} is '{word[sign[i]]}', {label} gives "
+               f"'{word[sg[i]]}'; {signs[src[i]][0]} is used" for i in np.flatnonzero(off)]  # fmt: skip
         cautions.add(off, "carrier_type_mismatch", msg)
-    cautions.add(np.isin(n_src, (2, 3)), "hall_single_carrier",
-          "n = 1/(e|R_H|) assumes a single carrier type and a Hall factor of 1")  # fmt: skip
-    vol_given = (
-        ~np.isnan(get("density_cm3")) | ~np.isnan(get("resistivity_ohm_cm")) | ~np.isnan(rh)
-    )
-    cautions.add((dl > 0) & vol_given, "dead_layer_not_applied",
-          "The dead layer is applied to sheet values only; volume values given in the file are used as they are")  # fmt: skip
-    sheet_given = (
-        ~np.isnan(get("sheet_density_cm2"))
-        | ~np.isnan(get("sheet_resistance_ohm_sq"))
-        | ~np.isnan(rhs)
-    )
-    cautions.add(sheet_given & np.isnan(t), "thickness_missing",
-          "No thickness_nm: sheet values could not be turned into volume values")  # fmt: skip
-    cautions.add(np.isnan(dens), "no_density",
-          "No carrier density given or derivable, so the row cannot be screened")  # fmt: skip
-    filled = {
-        "density_cm3": dens, "sheet_density_cm2": ns, "resistivity_ohm_cm": rho,
-        "sheet_resistance_ohm_sq": rs, "mobility_cm2_vs": mu,
-    }  # fmt: skip
-    errs = {"density_cm3": dens_err, "sheet_density_cm2": ns_err, "resistivity_ohm_cm": rho_err,
-            "sheet_resistance_ohm_sq": rs_err, "mobility_cm2_vs": mu_err}  # fmt: skip
-    news = {col: np.isnan(get(col)) & ~np.isnan(value) for col, value in filled.items()}
-    news["carrier_type"] = (signs[0][1] == 0) & (sign != 0)
-    new: dict[str, object] = {}
-    for col, value in filled.items():  # a given value keeps its given uncertainty
-        given = ~np.isnan(get(col))
-        new[col], new[f"{col}_err"] = value, np.where(given, get(f"{col}_err"), errs[col])
-    new["carrier_type"] = _text(pa.array(["n", None, "p"]).take(pa.array(sign + 1)))
-    new["dead_layer_nm"] = dl
-    new["derived"], new["cautions"] = _text(_combine(news, n)), _text(cautions.codes())
-    new["caution_text"] = _text(cautions.text())
-    return _ordered(df, "measurements", new)
+    return sign, given
 
 
 def _text(values) -> pd.Series:
