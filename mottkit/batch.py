@@ -318,16 +318,7 @@ def screen(
         constant=constant,
         constant_err=constant_err,
     )
-    probability = criterion.metallic_probability(
-        n,
-        e,
-        m_radius,
-        density_err_cm3=density_err,
-        eps_r_err=eps_err,
-        mass_ratio_err=mass_err,
-        constant=constant,
-        constant_err=constant_err,
-    )
+    probability = criterion.margin_probability(margin, sigma)
     verdict = criterion.classify_verdict(probability, confidence=confidence)
     kfl = _ioffe_regel(n, resistivity, g)
 

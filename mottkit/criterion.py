@@ -23,6 +23,7 @@ __all__ = [
     "critical_density",
     "effective_bohr_radius",
     "log_margin",
+    "margin_probability",
     "metallic_probability",
     "mott_parameter",
 ]
@@ -300,6 +301,26 @@ def metallic_probability(
         constant=constant,
         constant_err=constant_err,
     )
+    return margin_probability(margin, sigma)
+
+
+def margin_probability(margin: ArrayLike, sigma: ArrayLike) -> float | np.ndarray:
+    """Φ(margin/sigma): the metallic probability from :func:`log_margin`'s output.
+
+    Parameters
+    ----------
+    margin : array_like
+        ln(n^(1/3) a_B*/constant) [-].
+    sigma : array_like
+        Its standard deviation [-]; 0 gives a step function.
+
+    Returns
+    -------
+    float or ndarray
+        Probability of the metallic side [-]; NaN where the margin is NaN.
+    """
+    margin = np.asarray(margin, dtype=float)
+    sigma = np.asarray(sigma, dtype=float)
     with np.errstate(divide="ignore", invalid="ignore"):
         z = np.where(sigma > 0, margin / sigma, np.sign(margin) * np.inf)
     prob = np.where(np.isnan(margin), np.nan, ndtr(z))
