@@ -26,6 +26,8 @@ import numpy as np
 from scipy.interpolate import CubicSpline
 from scipy.special import expit, gamma
 
+from ._spline import UniformSpline
+
 _ETA_LO = -20.0
 _ETA_HI = 100.0
 _ETA_STEP = 0.02
@@ -46,8 +48,8 @@ def _tables():
         f_mhalf[start : start + 512] = _T_STEP * occ.sum(axis=1) / gamma(0.5)
     ln_half = np.log(f_half)
     ln_mhalf = np.log(f_mhalf)
-    forward_half = CubicSpline(eta, ln_half)
-    forward_mhalf = CubicSpline(eta, ln_mhalf)
+    forward_half = UniformSpline(eta, ln_half)
+    forward_mhalf = UniformSpline(eta, ln_mhalf)
     inverse_half = CubicSpline(ln_half, eta)
     return forward_half, forward_mhalf, inverse_half, ln_half[0], ln_half[-1]
 
@@ -99,7 +101,7 @@ def inverse_fermi_dirac_half(ln_f) -> np.ndarray:
     eta[high] = (gamma(2.5) * np.exp(ln_f[high])) ** (2.0 / 3.0)
     for _ in range(2):  # the start is within 1e-4 (relative), so two steps reach 1e-15
         # Newton on g(η) = ln F_{1/2}(η) − ln_f, with g' = F_{-1/2}/F_{1/2}
-        g = ln_fermi_dirac(0.5, eta) - ln_f
-        slope = np.exp(ln_fermi_dirac(-0.5, eta) - ln_fermi_dirac(0.5, eta))
-        eta = eta - g / slope
+        ln_half = ln_fermi_dirac(0.5, eta)
+        slope = np.exp(ln_fermi_dirac(-0.5, eta) - ln_half)
+        eta = eta - (ln_half - ln_f) / slope
     return eta

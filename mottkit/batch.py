@@ -117,7 +117,10 @@ def _load(table) -> pd.DataFrame:
 
 
 def _host_lookup(names: np.ndarray, temperature_k: np.ndarray, default_host: str | None):
-    """Per-row host parameters plus a message for rows whose host is unknown."""
+    """Per-row host parameters, canonical names, and a message for unknown hosts.
+
+    The names are factorised once, so the work is per distinct host, not per row.
+    """
     from .materials import canonical_host_name, host_parameters
 
     labels = names.copy()
@@ -126,20 +129,16 @@ def _host_lookup(names: np.ndarray, temperature_k: np.ndarray, default_host: str
         labels = np.where(labels == "", default_host, labels)
     labels = np.where(labels == "", None, labels)
     params = host_parameters(labels, np.nan_to_num(temperature_k, nan=300.0), strict=False)
-    messages = np.full(labels.shape[0], "", dtype=object)
-    unknown = ~params["known"] & (labels != None)  # noqa: E711 - elementwise on object array
-    if unknown.any():
-        for label in pd.unique(labels[unknown]):
-            try:
-                canonical_host_name(label)
-                text = ""
-            except UnknownHostError as exc:
-                text = str(exc)
-            messages[unknown & (labels == label)] = text
-    resolved = np.where(params["known"], labels, None)
-    canonical = np.full(labels.shape[0], "", dtype=object)
-    for label in pd.unique(resolved[params["known"]]):
-        canonical[resolved == label] = canonical_host_name(label)
+    codes, uniques = pd.factorize(labels, use_na_sentinel=True)
+    canonical_u = np.full(len(uniques) + 1, "", dtype=object)  # last slot: no host
+    message_u = np.full(len(uniques) + 1, "", dtype=object)
+    for k, label in enumerate(uniques):
+        try:
+            canonical_u[k] = canonical_host_name(label)
+        except UnknownHostError as exc:
+            message_u[k] = str(exc)
+    canonical = np.where(params["known"], canonical_u[codes], "")
+    messages = np.where(params["known"], "", message_u[codes])
     return params, messages, canonical
 
 
@@ -300,14 +299,11 @@ def screen(
     m_radius = np.where(has_binding, e * criterion.BOHR_RADIUS_NM / a_b, m)
     n_c = criterion.critical_density(a_b, constant=constant)
     mott = criterion.mott_parameter(n, a_b)
-    lam = np.asarray(screening.screening_length(n, t, e, m, valleys=g))
+    lam, eta = screening._screening_and_level(n, t, e, m, g)
     with np.errstate(divide="ignore", invalid="ignore"):
         # unscreened 1s level e²/(8π ε0 ε_r a_B*) = Ry (a_0/a_B*)/ε_r, screened by B(a_B*/λ)
         unscreened = screening._RYDBERG_MEV * criterion.BOHR_RADIUS_NM / (e * a_b)
         binding = unscreened * np.asarray(screening.yukawa_binding(a_b / lam))
-        warm = t > 0
-        eta = np.where(ok, np.inf, np.nan)
-        eta[warm] = screening.reduced_fermi_level(n[warm], t[warm], m[warm], valleys=g[warm])
     margin, sigma = criterion.log_margin(
         n,
         e,
@@ -356,7 +352,8 @@ def screen(
         prefix_text=_text_column(data, "caution_text"),
     )
     result = pd.DataFrame(
-        {
+        copy=False,
+        data={
             "source_file": _cat(files),
             "source_line": pd.array(np.where(np.isnan(lines), pd.NA, lines), dtype="Int64")
             if size
@@ -393,7 +390,7 @@ def screen(
             "cautions": codes,
             "caution_text": text,
             "message": _cat(message),
-        }
+        },
     )
     extra = [c for c in data.columns if c not in result.columns and not _is_internal(c)]
     if extra:

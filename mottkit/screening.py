@@ -305,12 +305,39 @@ def screening_length(
         n_c = np.asarray(effective_density_of_states(t, m, valleys=g)) * _M3_PER_CM3
         with np.errstate(divide="ignore", invalid="ignore"):
             eta = _fermi_dirac.inverse_fermi_dirac_half(np.log(d * _M3_PER_CM3) - np.log(n_c))
-            f_m = np.exp(_fermi_dirac.ln_fermi_dirac(-0.5, eta))
-            lam2 = sc.epsilon_0 * e * sc.k * t / (sc.e**2 * n_c * f_m)
-        lam = np.sqrt(lam2) * _NM_PER_M
-        lam = np.where(d == 0, np.inf, lam)
-        out[hot] = lam
+        out[hot] = _length_from_level(eta, d, t, e, n_c)
     return scalar_or_array(out)
+
+
+def _length_from_level(eta, density_cm3, temperature_k, eps_r, n_c_m3) -> np.ndarray:
+    """λ [nm] from the reduced Fermi level (T > 0): ε0 ε_r k_BT / (e² N_c F_{-1/2}(η))."""
+    with np.errstate(divide="ignore", invalid="ignore"):
+        f_m = np.exp(_fermi_dirac.ln_fermi_dirac(-0.5, eta))
+        lam2 = sc.epsilon_0 * eps_r * sc.k * temperature_k / (sc.e**2 * n_c_m3 * f_m)
+    return np.where(density_cm3 == 0, np.inf, np.sqrt(lam2) * _NM_PER_M)
+
+
+def _screening_and_level(density_cm3, temperature_k, eps_r, mass_ratio, valleys):
+    """Screening length [nm] and reduced Fermi level [-] with one inversion (validated input).
+
+    For T = 0 the length is Thomas–Fermi and η is +inf.
+    """
+    density, temp, eps, mass, gv = np.broadcast_arrays(
+        *(
+            np.asarray(v, dtype=float)
+            for v in (density_cm3, temperature_k, eps_r, mass_ratio, valleys)
+        )
+    )
+    lam = np.asarray(thomas_fermi_length(density, eps, mass, valleys=gv), dtype=float).copy()
+    eta = np.where(np.isnan(density + temp + eps + mass), np.nan, np.inf)
+    hot = temp > 0
+    if hot.any():
+        d, t, e, m, g = density[hot], temp[hot], eps[hot], mass[hot], gv[hot]
+        n_c = np.asarray(effective_density_of_states(t, m, valleys=g)) * _M3_PER_CM3
+        with np.errstate(divide="ignore", invalid="ignore"):
+            eta[hot] = _fermi_dirac.inverse_fermi_dirac_half(np.log(d * _M3_PER_CM3) - np.log(n_c))
+        lam[hot] = _length_from_level(eta[hot], d, t, e, n_c)
+    return lam, eta
 
 
 def screened_binding_energy(

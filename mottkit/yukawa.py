@@ -28,10 +28,11 @@ from functools import lru_cache
 import numpy as np
 from numpy.typing import ArrayLike
 from scipy.integrate import solve_ivp
-from scipy.interpolate import BarycentricInterpolator, CubicSpline
+from scipy.interpolate import BarycentricInterpolator
 from scipy.linalg import eigh_tridiagonal
 from scipy.optimize import brentq
 
+from ._spline import UniformSpline
 from ._validate import non_negative, scalar_or_array
 
 __all__ = ["yukawa_binding", "yukawa_ground_state_energy", "yukawa_threshold"]
@@ -121,7 +122,7 @@ def yukawa_ground_state_energy(delta: float) -> float:
 
 
 @lru_cache(maxsize=1)
-def _interpolant() -> CubicSpline:
+def _interpolant() -> UniformSpline:
     d_c = yukawa_threshold()
     k = np.arange(_N_NODES + 1)
     nodes = 0.5 * d_c * (1.0 - np.cos(np.pi * k / _N_NODES))
@@ -132,7 +133,7 @@ def _interpolant() -> CubicSpline:
     # barycentric (spectral) interpolation through the Chebyshev nodes, resampled once
     # onto a fine uniform grid so that a million evaluations cost a spline lookup
     fine = np.linspace(0.0, d_c, 4001)
-    return CubicSpline(fine, BarycentricInterpolator(nodes, root_b)(fine))
+    return UniformSpline(fine, BarycentricInterpolator(nodes, root_b)(fine))
 
 
 def yukawa_binding(screening_ratio: ArrayLike) -> float | np.ndarray:
