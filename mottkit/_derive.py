@@ -38,8 +38,11 @@ def _quad(*terms: np.ndarray) -> np.ndarray:
     return np.sqrt(total, out=total)
 
 
-def _combine(flags: dict[str, np.ndarray], n: int, sep: str = ";") -> pa.Array:
-    """Per row, the names whose flag is set, joined by ``sep`` (one string per combination)."""
+def _combine(flags: dict[str, np.ndarray], n: int, sep: str = ";") -> pd.Categorical:
+    """Per row, the names whose flag is set, joined by ``sep`` (one string per combination).
+
+    A Categorical: the strings are built once per distinct combination, never per row.
+    """
     names = list(flags)
     bits = np.zeros(n, np.int64)
     for k, name in enumerate(names):
@@ -48,7 +51,9 @@ def _combine(flags: dict[str, np.ndarray], n: int, sep: str = ";") -> pa.Array:
     lookup = np.zeros(combos[-1] + 1 if len(combos) else 1, np.int64)
     lookup[combos] = np.arange(len(combos))
     words = [sep.join(nm for k, nm in enumerate(names) if c >> k & 1) for c in combos]
-    return pa.array(words, pa.string()).take(pa.array(lookup[bits]))
+    if not words:
+        words = [""]
+    return pd.Categorical.from_codes(lookup[bits], categories=pd.Index(words, dtype=object))
 
 
 class _Estimate(NamedTuple):
@@ -124,15 +129,15 @@ class _Cautions:
             for i, text in zip(np.flatnonzero(mask), sentence, strict=True):
                 self.rows.setdefault(int(i), []).append(text)
 
-    def codes(self) -> pa.Array:
+    def codes(self) -> pd.Categorical:
         return _combine(self.flags, self.n)
 
-    def text(self) -> pa.Array:
+    def text(self) -> pd.Categorical | pa.Array:
         shared = {s: self.flags[c] for c, s in self.sentences.items()}
         text = _combine({f"{s}.": m for s, m in shared.items()}, self.n, " ")
         if not self.rows:
             return text
-        out = text.to_numpy(zero_copy_only=False).astype(object)
+        out = np.asarray(text, dtype=object).copy()
         for i, own in self.rows.items():
             out[i] = " ".join([*(f"{t}." for t in own), *([out[i]] if out[i] else [])])
         return pa.array(out, pa.string())
@@ -303,7 +308,10 @@ def _carrier_sign(get: _Inputs, cautions) -> tuple[np.ndarray, np.ndarray]:
 
 
 def _text(values) -> pd.Series:
-    """A pandas ``str`` column from an object array or a pyarrow array (fast)."""
+    """A pandas text column: Categoricals stay categorical (few distinct values), other
+    object or pyarrow arrays become ``str``."""
+    if isinstance(values, pd.Categorical):
+        return pd.Series(values)
     arr = values if isinstance(values, pa.Array) else pa.array(values, pa.string())
     return pd.Series(arr.to_pandas(), dtype="str")
 
