@@ -64,6 +64,19 @@ CAUTIONS: dict[str, str] = {
         "The ρ(T) verdict for this film disagrees with the density criterion."
     ),
     "excluded": "Excluded by annotation.",
+    # codes the reader attaches (mottkit.read_measurements); their row-specific sentences
+    # with the numbers are in caution_text
+    "density_mismatch": "Redundant density columns disagree by more than 10 %; the first is used.",
+    "resistivity_mismatch": (
+        "Resistivity and sheet resistance × thickness disagree by more than 10 %; the first is used."
+    ),
+    "mobility_mismatch": "The given mobility differs from 1/(e n ρ) by more than 10 %.",
+    "hall_single_carrier": (
+        "Density from the Hall coefficient as 1/(e|R_H|): exact for one carrier type only."
+    ),
+    "dead_layer_not_applied": "A dead layer is given but the density is a volume value, used as is.",
+    "thickness_missing": "A sheet quantity without a thickness: no volume value can be derived.",
+    "no_density": "No carrier density given or derivable: the row cannot be screened.",
 }
 
 

@@ -104,9 +104,11 @@ def resolve_path(
     Returns
     -------
     pathlib.Path
-        The absolute path of the first candidate that exists: ``path`` as given,
-        then relative to ``base`` (or the working directory), then relative to
-        its ``workbooks`` subfolder (a kernel started at the repository root).
+        The first candidate that exists: ``path`` as given, then relative to
+        ``base`` (or the working directory), then relative to its ``workbooks``
+        subfolder (a kernel started at the repository root). A relative path
+        stays relative (to the working directory), so that messages and shared
+        reports name the file without the folders above it.
 
     Raises
     ------
@@ -121,7 +123,11 @@ def resolve_path(
         candidates = [given, root / given, root / "workbooks" / given]
     for candidate in candidates:
         if candidate.exists():
-            return candidate.resolve()
+            return (
+                candidate
+                if not candidate.is_absolute() or given.is_absolute()
+                else candidate.resolve()
+            )
     tried = ", ".join(str(c) for c in dict.fromkeys(candidates))
     raise ReadError(f"{os.fspath(path)}: no such file (looked at {tried})")
 

@@ -8,7 +8,6 @@ import sys
 
 import pandas as pd
 import pytest
-
 from conftest import ROOT
 
 DEMO = ROOT / "data" / "demo"

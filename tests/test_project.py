@@ -81,3 +81,12 @@ def test_no_mention_of_where_the_project_came_from():
 def test_demo_data_says_it_is_invented():
     for path in (ROOT / "data" / "demo").glob("*.csv"):
         assert "INVENTED" in path.read_text(encoding="utf-8").splitlines()[0], path
+
+
+@pytest.mark.parametrize("command", [["check", "."], ["format", "--check", "."]])
+def test_ruff_is_clean(command):
+    # the lint and format rules live in pyproject.toml
+    out = subprocess.run(
+        [sys.executable, "-m", "ruff", *command], cwd=ROOT, capture_output=True, text=True
+    )
+    assert out.returncode == 0, out.stdout + out.stderr
