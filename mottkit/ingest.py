@@ -17,7 +17,7 @@ import numpy as np
 import pandas as pd
 import pyarrow as pa
 
-from . import _headers as H
+from . import _cells as H
 from ._derive import _DENSITY_SOURCES, _NM_TO_CM, _derive, _get, _ordered, _text
 from ._headers import HeaderSpec, accepted_headers, parse_header
 from ._units import KINDS
