@@ -548,14 +548,14 @@ def reduce_sweeps(
         ("large_offset", big_offset, lambda i: (
             f"offset {offset[i]:.3g} Ω is {offset_frac[i]:.2g}× the Hall signal at B_max: check "
             "the contact alignment.")),
-        ("weak_signal", weak, lambda i: (
-            "the Hall slope is within 3 σ of zero: carrier type and density are uncertain.")),
-        ("no_thickness", no_t, lambda i: (
+        ("weak_signal", weak,
+            "the Hall slope is within 3 σ of zero: carrier type and density are uncertain."),
+        ("no_thickness", no_t,
             "no thickness_nm, so no density_cm3 or resistivity: give a thickness_nm column or "
-            "the thickness_nm argument (--thickness-nm).")),
-        ("no_sheet_resistance", no_rs, lambda i: (
+            "the thickness_nm argument (--thickness-nm)."),
+        ("no_sheet_resistance", no_rs,
             "no sheet resistance (no resistances row, no longitudinal_resistance_ohm with a "
-            "geometric factor), so no mobility.")),
+            "geometric factor), so no mobility."),
     ]  # fmt: skip
     flag_col = _join_flags({code: mask for code, mask, _ in checks}, ng)
     both = (flag_col != "") & (vdp_flags != "")
@@ -566,8 +566,10 @@ def reduce_sweeps(
     body = np.full(idx.size, "", dtype=object)  # sentences joined by ' ', check by check
     for _, mask, say in checks:
         sel = np.flatnonzero(mask[idx]) if say is not None else np.zeros(0, np.int64)
-        if sel.size:
-            text = np.array([say(i) for i in idx[sel]], dtype=object)
+        if sel.size:  # a fixed sentence is broadcast; one with numbers is built per sample
+            text = (
+                say if isinstance(say, str) else np.array([say(i) for i in idx[sel]], dtype=object)
+            )
             body[sel] = np.where(body[sel] == "", text, body[sel] + " " + text)
     for extra in (row_msg, note_msg, np.where(vdp_msg != "", "van der Pauw: " + vdp_msg, "")):
         e = np.asarray(extra, dtype=object)[idx]
