@@ -15,6 +15,9 @@ from types import ModuleType
 import numpy as np
 import pandas as pd
 
+from ._columns import numeric_column as column  # noqa: F401 - used by the plot modules
+from ._columns import plain_text as _plain
+from ._columns import text_column  # noqa: F401 - used by the plot modules
 from .errors import InputError
 
 #: How each screening verdict is drawn: colour, plotly marker symbol and the
@@ -73,14 +76,6 @@ def escape_one(value) -> str:
     return html.escape(_plain(value), quote=False)
 
 
-def _plain(value) -> str:
-    if isinstance(value, (tuple, list)):
-        return "; ".join(str(v) for v in value)
-    if value is None or (isinstance(value, float) and np.isnan(value)) or value is pd.NA:
-        return ""
-    return str(value)
-
-
 def numbers(fmt: str, values, *, missing: str = "–") -> np.ndarray:
     """Format floats with a printf format, ``missing`` where not finite (vectorised)."""
     arr = np.asarray(values, dtype=float)
@@ -102,21 +97,6 @@ def labelled(label: str, text: np.ndarray) -> np.ndarray:
     """``label + text`` where text is not empty, else ''."""
     text = np.asarray(text, dtype=object)
     return np.where(text != "", label + text, "").astype(object)
-
-
-def column(table: pd.DataFrame, name: str, default=np.nan) -> np.ndarray:
-    """A numeric column as floats, ``default`` everywhere if absent."""
-    if name in table.columns:
-        return pd.to_numeric(table[name], errors="coerce").to_numpy(dtype=float)
-    return np.full(len(table), default, dtype=float)
-
-
-def text_column(table: pd.DataFrame, name: str) -> np.ndarray:
-    """A text column as an object array of str ('' for missing or absent)."""
-    if name not in table.columns:
-        return np.full(len(table), "", dtype=object)
-    codes, uniques = pd.factorize(table[name].astype(object), use_na_sentinel=True)
-    return np.array([*(_plain(u) for u in uniques), ""], dtype=object)[codes]
 
 
 def require(table, columns: tuple[str, ...], what: str) -> pd.DataFrame:

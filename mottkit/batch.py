@@ -19,6 +19,8 @@ import pandas as pd
 from scipy import constants as sc
 
 from . import criterion, screening
+from ._columns import numeric_column as _column
+from ._columns import text_column as _text_column
 from .cautions import CAUTIONS, THIN_FILM_BOHR_RADII, combine_flags
 from .errors import InputError, UnknownHostError
 
@@ -71,21 +73,6 @@ _FREEZE_OUT_FRACTION = (
     0.1  # k_BT > 0.1 E_d: partial ionisation matters (common practice, no source)
 )
 _PARAELECTRIC_WARM_K = 100.0  # above this a quantum paraelectric's ε_r is far below its plateau
-
-
-def _column(table: pd.DataFrame, name: str, default=np.nan) -> np.ndarray:
-    if name in table.columns:
-        return pd.to_numeric(table[name], errors="coerce").to_numpy(dtype=float)
-    return np.full(len(table), default, dtype=float)
-
-
-def _text_column(table: pd.DataFrame, name: str) -> np.ndarray:
-    """A text column as an object array with '' for missing (one pass per distinct value)."""
-    if name not in table.columns:
-        return np.full(len(table), "", dtype=object)
-    codes, uniques = pd.factorize(table[name], use_na_sentinel=True)
-    values = np.array([*(str(u) for u in uniques), ""], dtype=object)
-    return values[codes]  # code -1 picks the trailing ''
 
 
 def _cat(values: np.ndarray) -> pd.Categorical:
