@@ -56,6 +56,19 @@ def _add_screen(subparsers) -> None:
     p.add_argument("--constant", type=float, default=0.26, help="criterion constant (0.26)")
     p.add_argument("--scatter", type=float, default=0.05, help="scatter of the constant (0.05)")
     p.add_argument(
+        "--confidence",
+        type=float,
+        default=0.9,
+        help="probability needed for a metallic or insulating verdict (0.9)",
+    )
+    p.add_argument(
+        "--dead-layer-nm",
+        type=float,
+        default=0.0,
+        metavar="D",
+        help="electrically dead thickness [nm] taken off sheet densities (0)",
+    )
+    p.add_argument(
         "--radius",
         choices=("auto", "mass", "binding"),
         default="auto",
@@ -83,13 +96,15 @@ def _read_input(args) -> pd.DataFrame:
     from . import ingest
 
     if not args.sweeps:
-        return ingest.read_measurements(args.file)
+        return ingest.read_measurements(args.file, dead_layer_nm=args.dead_layer_nm)
     from .hall import reduce_sweeps
 
     sweeps = ingest.read_sweeps(args.file)
     resistances = ingest.read_resistances(args.resistances) if args.resistances else None
     summary = reduce_sweeps(sweeps, thickness_nm=args.thickness_nm, resistances=resistances)
-    return ingest.read_measurements(summary.to_csv(index=False).encode())
+    return ingest.read_measurements(
+        summary.to_csv(index=False).encode(), dead_layer_nm=args.dead_layer_nm
+    )
 
 
 def _screen_with_progress(table: pd.DataFrame, args, **options) -> pd.DataFrame:
@@ -133,6 +148,7 @@ def _run_screen(args) -> int:
             host=args.host,
             constant=args.constant,
             constant_err=args.scatter,
+            confidence=args.confidence,
             radius=args.radius,
             transport=transport,
         )

@@ -120,3 +120,19 @@ def test_long_batch_shows_progress(tmp_path):
     out = run("screen", path, "--format", "csv", "--out", tmp_path / "o.csv")
     assert out.returncode == 0, out.stderr
     assert f"{n}/{n} films" in out.stderr
+
+
+def test_screen_confidence_and_dead_layer(tmp_path):
+    # sheet density over (thickness − dead layer): 1e15 cm⁻² in 100 − 50 nm is 2e20 cm⁻³
+    data = tmp_path / "films.csv"
+    data.write_text("sample,host,n_s (cm^-2),t (nm)\na,ZnO,1e15,100\n", encoding="utf-8")
+    out = run("screen", data, "--dead-layer-nm", "50", "--format", "csv")
+    assert out.returncode == 0, out.stderr
+    table = pd.read_csv(pd.io.common.StringIO(out.stdout))
+    assert abs(table["density_cm3"].iloc[0] / 2e20 - 1) < 1e-9
+    # a near-line film: metallic at a loose band, near-transition at a strict one
+    data.write_text("sample,host,n (cm^-3),T (K)\nb,ZnO,1e19,2\n", encoding="utf-8")
+    loose = run("screen", data, "--confidence", "0.6", "--format", "csv")
+    strict = run("screen", data, "--confidence", "0.999", "--format", "csv")
+    assert "metallic" in loose.stdout.splitlines()[1]
+    assert "near-transition" in strict.stdout.splitlines()[1]
