@@ -11,7 +11,7 @@ from __future__ import annotations
 import numpy as np
 import pandas as pd
 
-__all__ = ["CAUTIONS", "THIN_FILM_BOHR_RADII", "caution_text", "combine_flags"]
+__all__ = ["CAUTIONS", "THIN_FILM_BOHR_RADII", "combine_flags"]
 
 #: A film thinner than this many effective Bohr radii is flagged: the donor
 #: wavefunction and the screening cloud feel the surfaces, and a 2D criterion
@@ -141,26 +141,3 @@ def _categorical(codes: np.ndarray, values: list[str]) -> pd.Categorical:
     """Categorical from per-row indices into ``values`` (which may repeat)."""
     cats, remap = np.unique(np.asarray(values, dtype=object).astype(str), return_inverse=True)
     return pd.Categorical.from_codes(remap[codes], categories=list(cats))
-
-
-def caution_text(codes) -> np.ndarray:
-    """Readable sentences for ';'-joined caution codes (one lookup per distinct set).
-
-    Parameters
-    ----------
-    codes : array_like of str
-        ';'-joined caution codes per row.
-
-    Returns
-    -------
-    ndarray of object
-        The sentences of each row's codes, joined by a space; unknown codes are
-        shown as they are.
-    """
-    series = pd.Series(np.asarray(codes, dtype=object)).fillna("")
-    uniques = series.unique()
-    lookup = {
-        combo: " ".join(CAUTIONS.get(c, c) for c in str(combo).split(";") if c)
-        for combo in uniques
-    }
-    return series.map(lookup).to_numpy(dtype=object)
