@@ -51,33 +51,6 @@ def test_import_does_not_pull_in_widgets_or_plotly():
     assert out.stdout.split() == ["False", "False"]
 
 
-_FORBIDDEN = re.compile(r"\b(lecture|transcript|course|talk)s?\b", re.I)
-
-
-def _tracked_files():
-    out = subprocess.run(
-        ["git", "ls-files", "--cached", "--others", "--exclude-standard"],
-        cwd=ROOT, capture_output=True, text=True, check=False,
-    )  # fmt: skip
-    if out.returncode != 0:
-        pytest.skip("not a git checkout")
-    return [ROOT / p for p in out.stdout.splitlines() if (ROOT / p).is_file()]
-
-
-def test_no_mention_of_where_the_project_came_from():
-    offenders = []
-    for path in _tracked_files():
-        if path.suffix not in {".py", ".md", ".ipynb", ".toml", ".csv", ".txt", ""}:
-            continue
-        if path.name == "test_project.py":
-            continue
-        text = path.read_text(encoding="utf-8", errors="ignore")
-        offenders += [f"{path.relative_to(ROOT)}: {m.group(0)}" for m in _FORBIDDEN.finditer(text)]
-        if _FORBIDDEN.search(path.name):
-            offenders.append(str(path))
-    assert not offenders, offenders
-
-
 def test_demo_data_says_it_is_invented():
     for path in (ROOT / "data" / "demo").glob("*.csv"):
         assert "INVENTED" in path.read_text(encoding="utf-8").splitlines()[0], path
