@@ -444,28 +444,18 @@ def _join_transport(result: pd.DataFrame, transport: pd.DataFrame) -> pd.DataFra
             "transport_verdict": transport["transport_verdict"].astype(str).to_numpy(),
         }
     ).drop_duplicates(["batch", "sample"], keep="last")
-    key_sample = result["sample"].astype(str).to_numpy()
-    key_batch = result["batch"].astype(str).to_numpy()
-    by_pair = dict(
-        zip(
-            zip(right["batch"], right["sample"], strict=True),
-            right["transport_verdict"],
-            strict=True,
-        )
+    keys = pd.DataFrame(
+        {
+            "batch": result["batch"].astype(str).to_numpy(),
+            "sample": result["sample"].astype(str).to_numpy(),
+        }
     )
-    by_sample = dict(
-        zip(
-            right.loc[right["batch"] == "", "sample"],
-            right.loc[right["batch"] == "", "transport_verdict"],
-            strict=True,
-        )
-    )
-    verdicts = [
-        by_pair.get((b, smp), by_sample.get(smp, ""))
-        for b, smp in zip(key_batch, key_sample, strict=True)
-    ]
+    # one vectorised lookup by (batch, sample), then by sample for curves without a batch
+    by_pair = keys.merge(right, on=["batch", "sample"], how="left")["transport_verdict"]
+    loose = right.loc[right["batch"] == "", ["sample", "transport_verdict"]]
+    by_sample = keys[["sample"]].merge(loose, on="sample", how="left")["transport_verdict"]
     merged = result.copy()
-    merged["transport_verdict"] = verdicts
+    merged["transport_verdict"] = by_pair.fillna(by_sample).to_numpy()
     merged["transport_verdict"] = merged["transport_verdict"].fillna("")
     has = merged["transport_verdict"] != ""
     agreement = np.full(len(merged), "", dtype=object)

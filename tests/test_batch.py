@@ -241,3 +241,21 @@ def test_annotations_join(tmp_path):
     assert r["note"].iloc[1] == "contacts peeled"
     assert "excluded" in r["cautions"].iloc[1]
     assert len(r) == 2 and data.read_bytes() == before
+
+
+def test_transport_verdict_joins_by_batch_then_sample():
+    # a curve naming its batch matches only that batch; one without a batch matches the sample
+    films = _films(
+        batch=["r1", "r2", "r1"],
+        sample=["a", "a", "b"],
+        host="ZnO",
+        density_cm3=[1e20, 1e20, 1e16],
+        temperature_k=2.0,
+    )
+    curves = pd.DataFrame(
+        {"batch": ["r1", ""], "sample": ["a", "b"], "transport_verdict": ["metallic", "metallic"]}
+    )
+    r = mk.screen(films, transport=curves)
+    assert r["transport_verdict"].tolist() == ["metallic", "", "metallic"]
+    assert r["agreement"].tolist() == ["agree", "", "disagree"]
+    assert "transport_disagrees" in r["cautions"].iloc[2]
